@@ -1,0 +1,24 @@
+//! holecast: multichannel high-harmonic dipoles of molecules from strong-field quantum orbits.
+#![warn(missing_docs)]
+
+pub mod classical;
+pub mod cmath;
+pub mod cutoff;
+pub mod dipole;
+pub mod error;
+pub mod field;
+pub mod hole;
+pub mod ionization;
+pub mod laser;
+pub mod orbital;
+pub mod orbits;
+pub mod orientation;
+pub mod recombination;
+pub mod report;
+pub mod special;
+pub mod spectrum;
+pub mod target;
+pub mod tunnelling;
+pub mod units;
+
+pub use error::{Error, Result};
