@@ -1,0 +1,209 @@
+//! Discovery of quantum-orbit families from classical trajectories.
+//!
+//! For every crest of the field (a local maximum of `|E|`, one per half cycle of a linear
+//! monochromatic field) electrons born at rest between the crest and the next reversal of the
+//! field are followed classically ([`crate::classical`]). For each return index `k` the return
+//! energy as a function of birth time rises to a maximum (the classical cutoff of that return)
+//! and falls again: births before the maximum form the *long* branch, births after it the
+//! *short* branch. Each branch seeds one quantum-orbit family; the two branches of one crest and
+//! return are tracked together because they coalesce at the cutoff.
+
+use std::fmt;
+
+use serde::Serialize;
+
+use crate::classical::{ReturnSearch, returns};
+use crate::field::Field;
+
+/// Short or long member of a pair of quantum orbits.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, PartialOrd, Ord, Hash, Serialize)]
+#[serde(rename_all = "lowercase")]
+pub enum Branch {
+    /// Born after the birth time of the cutoff trajectory: shorter excursion.
+    Short,
+    /// Born before it: longer excursion.
+    Long,
+}
+
+/// Stable label of a quantum-orbit family within one half cycle.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, PartialOrd, Ord, Hash)]
+pub struct FamilyLabel {
+    /// Return index (1 = first return).
+    pub return_index: u32,
+    /// Short or long member.
+    pub branch: Branch,
+}
+
+impl fmt::Display for FamilyLabel {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        let b = match self.branch {
+            Branch::Short => "short",
+            Branch::Long => "long",
+        };
+        if self.return_index == 1 {
+            write!(f, "{b}")
+        } else {
+            write!(f, "return{}-{b}", self.return_index)
+        }
+    }
+}
+
+/// Classical trajectories of one branch, ordered by increasing return energy.
+#[derive(Clone, Debug)]
+pub struct ClassicalBranch {
+    /// Family label.
+    pub label: FamilyLabel,
+    /// Birth times (a.u.).
+    pub births: Vec<f64>,
+    /// Return times (a.u.).
+    pub returns: Vec<f64>,
+    /// Return kinetic energies (a.u.), ascending.
+    pub energies: Vec<f64>,
+}
+
+impl ClassicalBranch {
+    /// Birth and return time of the classical trajectory with return energy `energy`
+    /// (linear interpolation), or `None` outside the branch's energy range.
+    pub fn at_energy(&self, energy: f64) -> Option<(f64, f64)> {
+        let n = self.energies.len();
+        if n < 2 || energy < self.energies[0] || energy > self.energies[n - 1] {
+            return None;
+        }
+        let k = self
+            .energies
+            .partition_point(|&e| e < energy)
+            .clamp(1, n - 1);
+        let (e0, e1) = (self.energies[k - 1], self.energies[k]);
+        let w = if e1 > e0 {
+            (energy - e0) / (e1 - e0)
+        } else {
+            0.0
+        };
+        let lerp = |v: &[f64]| v[k - 1] + w * (v[k] - v[k - 1]);
+        Some((lerp(&self.births), lerp(&self.returns)))
+    }
+
+    /// Largest return energy on the branch (a.u.).
+    pub fn max_energy(&self) -> f64 {
+        self.energies.last().copied().unwrap_or(0.0)
+    }
+}
+
+/// The long and short branches of one crest and one return index.
+#[derive(Clone, Debug)]
+pub struct SeedGroup {
+    /// Crest index: 0 is the crest at `t = 0` (periodic) or nearest the pulse centre.
+    pub half_cycle: i32,
+    /// Time of the crest (a.u.).
+    pub crest: f64,
+    /// Return index.
+    pub return_index: u32,
+    /// Branches (long first, then short; either may be missing).
+    pub branches: Vec<ClassicalBranch>,
+}
+
+/// Settings of the family discovery.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct DiscoverySettings {
+    /// Highest return index.
+    pub max_returns: u32,
+    /// Crests lower than this fraction of the highest are ignored (pulses).
+    pub crest_threshold: f64,
+    /// Birth times sampled per crest window.
+    pub births_per_crest: usize,
+}
+
+impl Default for DiscoverySettings {
+    fn default() -> Self {
+        DiscoverySettings {
+            max_returns: 1,
+            crest_threshold: 0.3,
+            births_per_crest: 96,
+        }
+    }
+}
+
+/// Finds the classical branches of every crest of the field.
+pub fn discover(field: &Field, settings: &DiscoverySettings) -> Vec<SeedGroup> {
+    let search = ReturnSearch {
+        max_returns: settings.max_returns as usize,
+        ..ReturnSearch::default()
+    };
+    let mut groups = Vec::new();
+    for w in field.birth_windows(settings.crest_threshold) {
+        let n = settings.births_per_crest.max(8);
+        let births: Vec<f64> = (0..n)
+            .map(|i| w.start + (w.end - w.start) * (i as f64 + 0.5) / n as f64)
+            .collect();
+        let events: Vec<_> = births.iter().map(|&t| returns(field, t, &search)).collect();
+        for k in 1..=settings.max_returns {
+            let branches = split_branches(&births, &events, k);
+            if !branches.is_empty() {
+                groups.push(SeedGroup {
+                    half_cycle: w.index,
+                    crest: w.crest,
+                    return_index: k,
+                    branches,
+                });
+            }
+        }
+    }
+    groups
+}
+
+/// Splits the births with a `k`-th return into long and short branches at the largest return
+/// energy of the longest contiguous run.
+fn split_branches(
+    births: &[f64],
+    events: &[Vec<crate::classical::ReturnEvent>],
+    k: u32,
+) -> Vec<ClassicalBranch> {
+    let at = |i: usize| events[i].iter().find(|e| e.index == k as usize);
+    // Longest contiguous run of births that have a k-th return.
+    let (mut best, mut start) = ((0, 0), None);
+    for i in 0..=births.len() {
+        let has = i < births.len() && at(i).is_some();
+        match (has, start) {
+            (true, None) => start = Some(i),
+            (false, Some(s)) => {
+                if i - s > best.1 - best.0 {
+                    best = (s, i);
+                }
+                start = None;
+            }
+            _ => {}
+        }
+    }
+    let (lo, hi) = best;
+    if hi - lo < 6 {
+        return Vec::new();
+    }
+    let energy = |i: usize| at(i).map_or(0.0, |e| e.energy);
+    let peak = (lo..hi)
+        .max_by(|&a, &b| energy(a).total_cmp(&energy(b)))
+        .unwrap_or(lo);
+    let mut out = Vec::new();
+    let make = |idx: Vec<usize>, branch: Branch| {
+        let mut pts: Vec<(f64, f64, f64)> = idx
+            .into_iter()
+            .filter_map(|i| at(i).map(|e| (births[i], e.time, e.energy)))
+            .collect();
+        pts.sort_by(|a, b| a.2.total_cmp(&b.2));
+        ClassicalBranch {
+            label: FamilyLabel {
+                return_index: k,
+                branch,
+            },
+            births: pts.iter().map(|p| p.0).collect(),
+            returns: pts.iter().map(|p| p.1).collect(),
+            energies: pts.iter().map(|p| p.2).collect(),
+        }
+    };
+    if peak + 1 - lo >= 3 {
+        out.push(make((lo..=peak).collect(), Branch::Long));
+    }
+    if hi - peak >= 3 {
+        out.push(make((peak..hi).collect(), Branch::Short));
+    }
+    out
+}
