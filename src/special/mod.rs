@@ -1,0 +1,4 @@
+//! Special functions and quadrature rules.
+
+pub mod airy;
+pub mod gauss_legendre;
