@@ -1,0 +1,149 @@
+//! Command-line arguments (clap derive): raw values only; `settings` validates them.
+
+use std::path::PathBuf;
+
+use clap::{Args, Parser, Subcommand, ValueEnum};
+
+/// holecast: high-harmonic dipoles of atoms and molecules from strong-field quantum orbits.
+///
+/// holecast is a calculator. Intense lasers are hazardous: laboratory work follows local
+/// laser-safety rules and licensed practice.
+#[derive(Debug, Parser)]
+#[command(name = "holecast", version, about, long_about = None)]
+pub struct Cli {
+    /// What to do.
+    #[command(subcommand)]
+    pub command: Command,
+    /// No progress output on stderr.
+    #[arg(long, global = true)]
+    pub quiet: bool,
+}
+
+/// Subcommands.
+#[derive(Debug, Subcommand)]
+pub enum Command {
+    /// Validate a target and laser and print derived quantities per channel
+    /// (Up, Keldysh parameter, photon energy, cutoff estimates).
+    Check(CheckArgs),
+    /// Solve the quantum orbits (complex ionization and return times) on an energy grid.
+    Orbits(OrbitsArgs),
+    /// Compute the harmonic spectrum and write spectrum.json, spectrum.csv and spectrum.svg.
+    Spectrum(SpectrumArgs),
+}
+
+/// Which target.
+#[derive(Debug, Args, Clone)]
+pub struct TargetArgs {
+    /// Target file (JSON, see docs/target-file.md).
+    #[arg(value_name = "TARGET", required_unless_present = "ip")]
+    pub target: Option<PathBuf>,
+    /// Instead of a target file: a one-channel atom with this ionization potential (eV) and the
+    /// default models.
+    #[arg(
+        long,
+        value_name = "EV",
+        conflicts_with = "target",
+        allow_negative_numbers = true
+    )]
+    pub ip: Option<f64>,
+}
+
+/// Which laser.
+#[derive(Debug, Args, Clone)]
+pub struct LaserArgs {
+    /// Laser file (JSON, see docs/laser-file.md) for anything beyond one linear colour.
+    #[arg(long, value_name = "FILE")]
+    pub laser: Option<PathBuf>,
+    /// Cycle-averaged peak intensity (W/cm²); with --laser it overrides the first colour's.
+    #[arg(long, value_name = "W/CM2", allow_negative_numbers = true)]
+    pub intensity: Option<f64>,
+    /// Wavelength (nm); with --laser it overrides the first colour's.
+    #[arg(long, value_name = "NM", allow_negative_numbers = true)]
+    pub wavelength: Option<f64>,
+}
+
+/// Which photon energies.
+#[derive(Debug, Args, Clone)]
+pub struct GridArgs {
+    /// Harmonic orders FIRST:LAST:STEP (e.g. 11:45:1). Default: from the first order above Ip
+    /// to 20% past the quantum cutoff, step 1 (0.1 for pulses).
+    #[arg(
+        long,
+        value_name = "FIRST:LAST:STEP",
+        conflicts_with = "energies",
+        allow_hyphen_values = true
+    )]
+    pub orders: Option<String>,
+    /// Photon energies in eV, FIRST:LAST:STEP.
+    #[arg(long, value_name = "FIRST:LAST:STEP", allow_hyphen_values = true)]
+    pub energies: Option<String>,
+    /// Highest return of the electron to include (1 = short and long first-return orbits).
+    #[arg(long, value_name = "N", default_value_t = 1)]
+    pub returns: u32,
+}
+
+/// Output format of a table.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum Format {
+    /// Aligned text for reading.
+    Table,
+    /// JSON document.
+    Json,
+    /// CSV.
+    Csv,
+}
+
+/// How to sum the saddles of a pair.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum SumArg {
+    /// Uniform (Airy) approximation: finite through the cutoff.
+    Uniform,
+    /// Plain saddle-point sum (diverges at the cutoff; for comparison).
+    Plain,
+}
+
+/// `holecast check`.
+#[derive(Debug, Args)]
+pub struct CheckArgs {
+    #[command(flatten)]
+    pub target: TargetArgs,
+    #[command(flatten)]
+    pub laser: LaserArgs,
+    /// Output format (table or json).
+    #[arg(long, value_enum, default_value_t = Format::Table)]
+    pub format: Format,
+}
+
+/// `holecast orbits`.
+#[derive(Debug, Args)]
+pub struct OrbitsArgs {
+    #[command(flatten)]
+    pub target: TargetArgs,
+    #[command(flatten)]
+    pub laser: LaserArgs,
+    #[command(flatten)]
+    pub grid: GridArgs,
+    /// Output format.
+    #[arg(long, value_enum, default_value_t = Format::Table)]
+    pub format: Format,
+    /// Write to this file instead of standard output.
+    #[arg(long, value_name = "FILE")]
+    pub out: Option<PathBuf>,
+}
+
+/// `holecast spectrum`.
+#[derive(Debug, Args)]
+pub struct SpectrumArgs {
+    #[command(flatten)]
+    pub target: TargetArgs,
+    #[command(flatten)]
+    pub laser: LaserArgs,
+    #[command(flatten)]
+    pub grid: GridArgs,
+    /// Saddle summation.
+    #[arg(long, value_enum, default_value_t = SumArg::Uniform)]
+    pub sum: SumArg,
+    /// Output folder (created if missing).
+    #[arg(long, value_name = "DIR")]
+    pub out: PathBuf,
+}

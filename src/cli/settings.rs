@@ -1,0 +1,166 @@
+//! Validated settings built from the raw arguments: files read, units converted, every error
+//! naming the file, the key, the value and the reason.
+
+use std::path::{Path, PathBuf};
+
+use anyhow::{Context, Result, anyhow, bail};
+
+use holecast::cutoff::Cutoffs;
+use holecast::field::{Field, TimeStructure};
+use holecast::laser::LaserSpec;
+use holecast::target::{Target, TargetSpec};
+use holecast::units;
+
+use super::args::{GridArgs, LaserArgs, TargetArgs};
+
+/// A target with where it came from.
+pub struct LoadedTarget {
+    /// The validated target.
+    pub target: Target,
+    /// The file it was read from (None for `--ip`).
+    pub file: Option<PathBuf>,
+}
+
+fn read_text(path: &Path, what: &str) -> Result<String> {
+    std::fs::read_to_string(path)
+        .with_context(|| format!("cannot read {what} file {}", path.display()))
+}
+
+/// Reads and validates the target.
+pub fn target(args: &TargetArgs) -> Result<LoadedTarget> {
+    match (&args.target, args.ip) {
+        (Some(path), None) => {
+            let text = read_text(path, "target")?;
+            let spec = TargetSpec::from_json(&text)
+                .map_err(|e| anyhow!("target file {}: {e}", path.display()))?;
+            let target = spec
+                .validate()
+                .map_err(|e| anyhow!("target file {}: {e}", path.display()))?;
+            Ok(LoadedTarget {
+                target,
+                file: Some(path.clone()),
+            })
+        }
+        (None, Some(ip)) => Ok(LoadedTarget {
+            target: Target::atom(ip)?,
+            file: None,
+        }),
+        _ => bail!("give a target file or --ip EV (not both)"),
+    }
+}
+
+/// The laser description after applying the shorthands.
+pub fn laser(args: &LaserArgs) -> Result<(LaserSpec, Field)> {
+    let (mut spec, origin) = match &args.laser {
+        Some(path) => {
+            let text = read_text(path, "laser")?;
+            let spec: LaserSpec = serde_json::from_str(&text)
+                .map_err(|e| anyhow!("laser file {}: {e}", path.display()))?;
+            (spec, format!("laser file {}", path.display()))
+        }
+        None => {
+            let (Some(i), Some(l)) = (args.intensity, args.wavelength) else {
+                bail!(
+                    "the laser is not specified: give --intensity W/CM2 and --wavelength NM, \
+                     or --laser FILE"
+                );
+            };
+            (LaserSpec::monochromatic(i, l), "command line".to_string())
+        }
+    };
+    if args.laser.is_some() {
+        if let Some(first) = spec.colours.first_mut() {
+            if let Some(i) = args.intensity {
+                first.intensity_wcm2 = Some(i);
+            }
+            if let Some(l) = args.wavelength {
+                first.wavelength_nm = Some(l);
+            }
+        }
+    }
+    let field = spec.to_field().map_err(|e| {
+        let e = e.to_string();
+        let e = e
+            .replace(
+                "colours[0].intensity_wcm2",
+                "intensity (--intensity or colours[0].intensity_wcm2)",
+            )
+            .replace(
+                "colours[0].wavelength_nm",
+                "wavelength (--wavelength or colours[0].wavelength_nm)",
+            );
+        anyhow!("{origin}: {e}")
+    })?;
+    Ok((spec, field))
+}
+
+/// Parses `FIRST:LAST:STEP`.
+fn parse_range(text: &str, option: &str) -> Result<(f64, f64, f64)> {
+    let parts: Vec<&str> = text.split(':').collect();
+    if parts.len() != 3 {
+        bail!("{option} {text:?}: expected FIRST:LAST:STEP, e.g. 11:45:1");
+    }
+    let num = |s: &str, what: &str| -> Result<f64> {
+        let v: f64 = s
+            .trim()
+            .parse()
+            .map_err(|_| anyhow!("{option} {text:?}: {what} {s:?} is not a number"))?;
+        if !v.is_finite() {
+            bail!("{option} {text:?}: {what} must be finite");
+        }
+        Ok(v)
+    };
+    let (a, b, s) = (
+        num(parts[0], "FIRST")?,
+        num(parts[1], "LAST")?,
+        num(parts[2], "STEP")?,
+    );
+    if a <= 0.0 {
+        bail!("{option} {text:?}: FIRST must be positive");
+    }
+    if b < a {
+        bail!("{option} {text:?}: LAST must not be below FIRST");
+    }
+    if s <= 0.0 {
+        bail!("{option} {text:?}: STEP must be positive");
+    }
+    let n = ((b - a) / s + 1e-9).floor() + 1.0;
+    if n > 1e6 {
+        bail!("{option} {text:?}: {n} points is more than the 1,000,000 allowed");
+    }
+    Ok((a, b, s))
+}
+
+fn grid_points(a: f64, b: f64, s: f64) -> Vec<f64> {
+    let n = ((b - a) / s + 1e-9).floor() as usize;
+    (0..=n).map(|k| a + s * k as f64).collect()
+}
+
+/// The photon energies (a.u.) requested, or the default range for the lowest-Ip channel.
+pub fn energies(args: &GridArgs, field: &Field, ip: f64, cutoffs: &Cutoffs) -> Result<Vec<f64>> {
+    let omega = field.omega();
+    if let Some(text) = &args.orders {
+        let (a, b, s) = parse_range(text, "--orders")?;
+        return Ok(grid_points(a, b, s)
+            .into_iter()
+            .map(|q| q * omega)
+            .collect());
+    }
+    if let Some(text) = &args.energies {
+        let (a, b, s) = parse_range(text, "--energies")?;
+        return Ok(grid_points(a, b, s)
+            .into_iter()
+            .map(units::ev_to_au)
+            .collect());
+    }
+    let step = match field.structure() {
+        TimeStructure::Periodic { .. } => 1.0,
+        TimeStructure::Pulse { .. } => 0.1,
+    };
+    let first = ((ip / omega) / step).floor() * step + step;
+    let top = 1.2 * cutoffs.quantum.unwrap_or(cutoffs.classical) / omega;
+    Ok(grid_points(first, top.max(first + step), step)
+        .into_iter()
+        .map(|q| q * omega)
+        .collect())
+}
