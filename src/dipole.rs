@@ -156,7 +156,7 @@ pub fn kernels(table: &OrbitTable, sum: SaddleSum, epsilon: f64) -> Kernels {
     for (f, (family, row)) in table.families.iter().zip(values.iter_mut()).enumerate() {
         for (k, (point, slot)) in family.points.iter().zip(row.iter_mut()).enumerate() {
             if let Some(s) = point.saddle() {
-                *slot = if table.is_physical(f, k) || sum == SaddleSum::Uniform {
+                *slot = if table.is_physical(f, k) {
                     Kernel {
                         value: continuum_kernel(s, epsilon),
                         kind: KernelKind::Plain,
@@ -175,8 +175,9 @@ pub fn kernels(table: &OrbitTable, sum: SaddleSum, epsilon: f64) -> Kernels {
             for (k, point) in pair.points.iter().enumerate() {
                 let m = table.families[pair.minus].points[k].saddle();
                 let p = table.families[pair.plus].points[k].saddle();
+                let inside = table.inside_pulse(pair.minus, k) && table.inside_pulse(pair.plus, k);
                 match (m, p, point) {
-                    (Some(m), Some(p), Some(pp)) => {
+                    (Some(m), Some(p), Some(pp)) if inside => {
                         let (km, kp) =
                             uniform_pair(m, p, pp.zeta, pp.zeta_sqrt, pp.zeta_quarter, epsilon);
                         values[pair.minus][k] = Kernel {

@@ -106,6 +106,13 @@ impl Spectrum {
         self.total[k].iter().map(|c| c.norm_sqr()).sum()
     }
 
+    /// Largest `|D|²` over the energies.
+    pub fn intensity_max(&self) -> f64 {
+        (0..self.energies.len())
+            .map(|k| self.intensity(k))
+            .fold(0.0, f64::max)
+    }
+
     /// Emitted power `Ω⁴|D|²` at energy index `k` (arbitrary units).
     pub fn power(&self, k: usize) -> f64 {
         self.energies[k].powi(4) * self.intensity(k)
@@ -140,32 +147,6 @@ fn phase_derivative(lo: Complex64, hi: Complex64, delta: f64) -> Option<f64> {
         return None;
     }
     Some((hi / lo).arg() / (2.0 * delta))
-}
-
-/// Keeps the points `k·stride + offset` of a table.
-fn subsample(table: &OrbitTable, stride: usize, offset: usize) -> OrbitTable {
-    let pick = |n: usize| (0..n / stride).map(move |k| k * stride + offset);
-    let n = table.energies.len();
-    OrbitTable {
-        pair: table.pair,
-        energies: pick(n).map(|i| table.energies[i]).collect(),
-        families: table
-            .families
-            .iter()
-            .map(|f| crate::orbits::Family {
-                points: pick(n).map(|i| f.points[i]).collect(),
-                ..f.clone()
-            })
-            .collect(),
-        pairs: table
-            .pairs
-            .iter()
-            .map(|p| crate::orbits::FamilyPair {
-                points: pick(n).map(|i| p.points[i]).collect(),
-                ..p.clone()
-            })
-            .collect(),
-    }
 }
 
 /// The single-channel spectrum at photon energies `energies` (a.u.).
@@ -266,6 +247,6 @@ pub fn single_channel(
         group_delay,
         complete,
         contributions,
-        orbits: subsample(&table, stride, offset),
+        orbits: table.subsample(stride, offset),
     })
 }

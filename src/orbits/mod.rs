@@ -77,8 +77,6 @@ pub enum FailureReason {
     PredictorTooLong,
     /// The solution has Im t_i ≤ 0 or Re τ ≤ 0.
     Unphysical,
-    /// A time of the orbit lies outside the pulse envelope.
-    OutsidePulse,
 }
 
 impl std::fmt::Display for FailureReason {
@@ -97,7 +95,6 @@ impl std::fmt::Display for FailureReason {
             FailureReason::AmbiguousAiryBranch => "Airy-variable branch ambiguous",
             FailureReason::PredictorTooLong => "continuation step could not be made small enough",
             FailureReason::Unphysical => "solution has Im t_ion <= 0 or Re tau <= 0",
-            FailureReason::OutsidePulse => "orbit time outside the pulse envelope",
         };
         f.write_str(s)
     }
@@ -194,16 +191,35 @@ pub struct OrbitTable {
     pub families: Vec<Family>,
     /// The coalescing pairs among them.
     pub pairs: Vec<FamilyPair>,
+    /// For a pulse, the interval `[start, end]` (a.u.) where the field is non-zero.
+    pub pulse: Option<(f64, f64)>,
 }
 
 impl OrbitTable {
-    /// Whether family `f` at point `k` is a physical contribution: always below the cutoff;
-    /// beyond it (Re ζ < 0) only the member that decays (larger Im Φ) of a pair is kept.
+    /// Whether the saddle of family `f` at point `k` lies inside the pulse (always true for a
+    /// periodic field). An orbit that would ionize or return where the field has ended is no
+    /// quantum orbit of the pulse: it is not counted, but it is no failure either.
+    pub fn inside_pulse(&self, f: usize, k: usize) -> bool {
+        match (self.pulse, self.families[f].points[k].saddle()) {
+            (Some((a, b)), Some(s)) => {
+                let inside = |t: f64| t >= a && t <= b;
+                inside(s.t_ion.re) && inside(s.t_ret.re)
+            }
+            _ => true,
+        }
+    }
+
+    /// Whether family `f` at point `k` is a physical contribution: inside the pulse, and always
+    /// below the cutoff; beyond it (Re ζ < 0) only the member that decays (larger Im Φ) of a pair
+    /// is kept.
     pub fn is_physical(&self, f: usize, k: usize) -> bool {
         let family = &self.families[f];
         let Some(s) = family.points[k].saddle() else {
             return false;
         };
+        if !self.inside_pulse(f, k) {
+            return false;
+        }
         let Some(p) = family.pair else {
             return true;
         };
@@ -221,6 +237,34 @@ impl OrbitTable {
                 }
             }
             _ => true,
+        }
+    }
+
+    /// The table restricted to the points `k·stride + offset` (e.g. the central points of
+    /// `Ω − δ, Ω, Ω + δ` triples).
+    pub fn subsample(&self, stride: usize, offset: usize) -> OrbitTable {
+        let n = self.energies.len();
+        let pick = || (0..n / stride).map(|k| k * stride + offset);
+        OrbitTable {
+            pair: self.pair,
+            energies: pick().map(|i| self.energies[i]).collect(),
+            families: self
+                .families
+                .iter()
+                .map(|f| Family {
+                    points: pick().map(|i| f.points[i]).collect(),
+                    ..f.clone()
+                })
+                .collect(),
+            pairs: self
+                .pairs
+                .iter()
+                .map(|p| FamilyPair {
+                    points: pick().map(|i| p.points[i]).collect(),
+                    ..p.clone()
+                })
+                .collect(),
+            pulse: self.pulse,
         }
     }
 
@@ -331,6 +375,10 @@ pub fn solve_orbits(
         energies: energies.to_vec(),
         families: Vec::new(),
         pairs: Vec::new(),
+        pulse: match field.structure() {
+            TimeStructure::Pulse { start, end } => Some((start, end)),
+            TimeStructure::Periodic { .. } => None,
+        },
     };
     for group in &groups {
         let labels: Vec<FamilyLabel> = group.branches.iter().map(|b| b.label).collect();
@@ -411,22 +459,6 @@ pub fn solve_orbits(
                 points: pair_points,
                 coalescence,
             });
-        }
-    }
-    if let TimeStructure::Pulse { start, end } = field.structure() {
-        for family in &mut table.families {
-            for p in &mut family.points {
-                if let OrbitPoint::Solved(s) = p {
-                    let inside = |t: f64| t >= start && t <= end;
-                    if !inside(s.t_ret.re) || !inside(s.t_ion.re) {
-                        *p = OrbitPoint::Failed(Failure {
-                            reason: FailureReason::OutsidePulse,
-                            iterations: s.iterations,
-                            residual: s.residual,
-                        });
-                    }
-                }
-            }
         }
     }
     Ok(table)

@@ -166,8 +166,14 @@ pub fn spectrum_figure(s: &Spectrum, markers: &[Marker], title: &str) -> Result<
             .draw()
             .map_err(err)?;
 
-        // Emission times (Re t_r) per family, and the group delay of the total.
-        let mut times: Vec<(String, Vec<(f64, f64)>)> = Vec::new();
+        // Emission times (Re t_r) per family, coloured by label as in the panel above (one
+        // legend entry per label), and the group delay of the total.
+        let label_colour: BTreeMap<String, RGBColor> = labels
+            .keys()
+            .enumerate()
+            .map(|(i, l)| (l.clone(), PALETTE[i % PALETTE.len()]))
+            .collect();
+        let mut times: Vec<(String, RGBColor, Vec<(f64, f64)>)> = Vec::new();
         for con in &s.contributions {
             let pts: Vec<(f64, f64)> = (0..orders.len())
                 .filter_map(|k| {
@@ -177,17 +183,19 @@ pub fn spectrum_figure(s: &Spectrum, markers: &[Marker], title: &str) -> Result<
                         .map(|t| (orders[k], units::au_to_fs(t)))
                 })
                 .collect();
+            let label = con.label.to_string();
+            let colour = label_colour.get(&label).copied().unwrap_or(BLACK);
             if !pts.is_empty() {
-                times.push((
-                    format!("{} (half cycle {})", con.label, con.half_cycle),
-                    pts,
-                ));
+                times.push((label, colour, pts));
             }
         }
         let delay: Vec<(f64, f64)> = (0..orders.len())
             .filter_map(|k| s.group_delay[k].map(|t| (orders[k], units::au_to_fs(t))))
             .collect();
-        let all = times.iter().flat_map(|(_, p)| p.iter()).chain(delay.iter());
+        let all = times
+            .iter()
+            .flat_map(|(_, _, p)| p.iter())
+            .chain(delay.iter());
         let (t0, t1) = all.fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), q| {
             (a.min(q.1), b.max(q.1))
         });
@@ -205,13 +213,17 @@ pub fn spectrum_figure(s: &Spectrum, markers: &[Marker], title: &str) -> Result<
                 .y_desc("emission time Re t_r (fs after the crest at t = 0)")
                 .draw()
                 .map_err(err)?;
-            for (i, (label, pts)) in times.iter().enumerate() {
-                let colour = PALETTE[i % PALETTE.len()];
-                chart
+            let mut seen = std::collections::BTreeSet::new();
+            for (label, colour, pts) in &times {
+                let colour = *colour;
+                let drawn = chart
                     .draw_series(LineSeries::new(pts.clone(), colour.stroke_width(1)))
-                    .map_err(err)?
-                    .label(label.clone())
-                    .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], colour));
+                    .map_err(err)?;
+                if seen.insert(label.clone()) {
+                    drawn
+                        .label(format!("{label}: Re t_r (each half cycle)"))
+                        .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], colour));
+                }
             }
             if !delay.is_empty() {
                 chart

@@ -1,0 +1,43 @@
+//! Single-channel harmonic spectrum of an argon-like atom, uniform against plain saddle sums.
+//!
+//! Run with `cargo run --release --example atom_spectrum`.
+
+use holecast::dipole::SaddleSum;
+use holecast::ionization::IonizationModel;
+use holecast::laser::LaserSpec;
+use holecast::recombination::RecombinationModel;
+use holecast::spectrum::{ChannelModels, SpectrumSettings, single_channel};
+use holecast::units;
+
+fn main() -> Result<(), Box<dyn std::error::Error>> {
+    let field = LaserSpec::monochromatic(1.5e14, 800.0).to_field()?;
+    let w = field.omega();
+    let ip = units::ev_to_au(15.7596119);
+    let models = ChannelModels {
+        ip,
+        ionization: IonizationModel::Gaussian {
+            exponent: 0.27095 * 2.0 * ip,
+        },
+        recombination: RecombinationModel::Hydrogenic { ip },
+    };
+    let energies: Vec<f64> = (11..=37).step_by(2).map(|q| f64::from(q) * w).collect();
+    let run = |sum| {
+        let settings = SpectrumSettings {
+            sum,
+            ..SpectrumSettings::default()
+        };
+        single_channel(&field, &models, &energies, &settings)
+    };
+    let (uniform, plain) = (run(SaddleSum::Uniform)?, run(SaddleSum::Plain)?);
+    println!("order  power (uniform)   power (plain)   group delay (fs)");
+    for k in 0..energies.len() {
+        println!(
+            "{:5.0}  {:14.4e}  {:14.4e}   {:8.3}",
+            energies[k] / w,
+            uniform.power(k),
+            plain.power(k),
+            uniform.group_delay[k].map_or(f64::NAN, units::au_to_fs)
+        );
+    }
+    Ok(())
+}
