@@ -27,6 +27,9 @@ const PALETTE: [RGBColor; 6] = [
     RGBColor(127, 127, 127),
 ];
 
+/// A labelled, coloured curve.
+type Curve = (String, RGBColor, Vec<(f64, f64)>);
+
 fn err<E: std::fmt::Debug>(e: E) -> String {
     format!("plotting failed: {e:?}")
 }
@@ -173,7 +176,7 @@ pub fn spectrum_figure(s: &Spectrum, markers: &[Marker], title: &str) -> Result<
             .enumerate()
             .map(|(i, l)| (l.clone(), PALETTE[i % PALETTE.len()]))
             .collect();
-        let mut times: Vec<(String, RGBColor, Vec<(f64, f64)>)> = Vec::new();
+        let mut times: Vec<Curve> = Vec::new();
         for con in &s.contributions {
             let pts: Vec<(f64, f64)> = (0..orders.len())
                 .filter_map(|k| {
