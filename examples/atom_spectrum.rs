@@ -30,10 +30,10 @@ fn main() -> Result<(), Box<dyn std::error::Error>> {
     };
     let (uniform, plain) = (run(SaddleSum::Uniform)?, run(SaddleSum::Plain)?);
     println!("order  power (uniform)   power (plain)   group delay (fs)");
-    for k in 0..energies.len() {
+    for (k, e) in energies.iter().enumerate() {
         println!(
             "{:5.0}  {:14.4e}  {:14.4e}   {:8.3}",
-            energies[k] / w,
+            e / w,
             uniform.power(k),
             plain.power(k),
             uniform.group_delay[k].map_or(f64::NAN, units::au_to_fs)
