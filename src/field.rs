@@ -364,6 +364,32 @@ impl Field {
         })
     }
 
+    /// The polarization direction if the field is linearly polarised (every mode's amplitude a
+    /// complex multiple of one real unit vector), else None.
+    pub fn linear_axis(&self) -> Option<Vector3<f64>> {
+        let mut axis: Option<Vector3<f64>> = None;
+        for m in &self.modes {
+            for part in [m.amplitude.map(|c| c.re), m.amplitude.map(|c| c.im)] {
+                let n = part.norm();
+                if n == 0.0 {
+                    continue;
+                }
+                match axis {
+                    None => axis = Some(part / n),
+                    Some(a) => {
+                        if a.cross(&part).norm() > 1e-12 * n {
+                            return None;
+                        }
+                    }
+                }
+            }
+        }
+        axis.map(|a| {
+            // Orient like the reference axis so that signs are reproducible.
+            if a.dot(&self.axis) < 0.0 { -a } else { a }
+        })
+    }
+
     /// Modes of the vector potential.
     pub fn modes(&self) -> &[Mode] {
         &self.modes

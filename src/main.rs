@@ -14,6 +14,7 @@ fn main() -> ExitCode {
         Command::Check(a) => cli::commands::check(a),
         Command::Orbits(a) => cli::commands::orbits(a),
         Command::Spectrum(a) => cli::commands::spectrum(a, cli.quiet),
+        Command::Holes(a) => cli::commands::holes(a, cli.quiet),
     };
     match result {
         Ok(()) => ExitCode::SUCCESS,

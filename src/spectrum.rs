@@ -26,7 +26,7 @@ use crate::orbits::{
 use crate::recombination::RecombinationModel;
 
 /// Structure models of one channel.
-#[derive(Clone, Debug, PartialEq)]
+#[derive(Clone, Debug)]
 pub struct ChannelModels {
     /// Ionization potential (a.u.).
     pub ip: f64,
@@ -194,12 +194,12 @@ pub fn single_channel(
         for (i, p) in family.points.iter().enumerate() {
             let kv = kern.values[f][i];
             if let OrbitPoint::Solved(s) = p {
-                let pre = channel.recombination.vector(&s.v_ret)
-                    * channel.ionization.factor(&s.v_ion, &s.e_ion);
+                let pre = channel.recombination.vector(&s.v_ret, table.energies[i])
+                    * channel.ionization.factor(&s.v_ion, &s.e_ion, &s.e_exit);
                 let d = pre * kv.value;
                 total[i] += d;
                 dipole[i] = Some(d);
-            } else if i % stride == offset {
+            } else if i % stride == offset && p.is_failure() {
                 complete[i / stride] = false;
             }
         }

@@ -1,17 +1,25 @@
-//! Target files: the molecule (or atom), its ionic channels and their structure models.
+//! Target files: the molecule (or atom), its ionic channels, the couplings between them, their
+//! structure models and the orientation distribution.
 //!
 //! A target file is JSON (schema in `docs/target-file.md`). It is read in two stages: serde
 //! parses the raw description with every unknown key rejected by name, then
 //! [`TargetSpec::validate`] converts lab units to atomic units and checks everything that
-//! involves several keys (duplicate labels, couplings that name unknown channels, …).
+//! involves several keys (duplicate labels, couplings that name unknown channels, a coupling
+//! matrix that would not be Hermitian, models that need a Dyson orbital the channel lacks, …).
 
-use nalgebra::Vector3;
+use std::sync::Arc;
+
+use nalgebra::{DMatrix, Vector3};
 use num_complex::Complex64;
 use serde::{Deserialize, Serialize};
 
 use crate::error::{Error, Result, require_finite, require_positive};
+use crate::hole::IonModel;
 use crate::ionization::{IonizationModel, sto1g_exponent};
-use crate::recombination::RecombinationModel;
+use crate::orbital::{Orbital, OrbitalSpec};
+use crate::orientation::{AlignmentDescription, AlignmentDistribution};
+use crate::recombination::{DipoleForm, RecombinationModel, ReturnMomentum};
+use crate::tunnelling::{AsymptoticOrbital, AsymptoticTerm};
 use crate::units;
 
 /// A complex number written as `[re, im]`.
@@ -23,7 +31,65 @@ fn complex(key: &str, c: ComplexSpec) -> Result<Complex64> {
     Ok(Complex64::new(c[0], c[1]))
 }
 
+/// A real or complex number (`1.5` or `[1.5, 0.2]`).
+#[derive(Clone, Debug, PartialEq, Deserialize, Serialize)]
+#[serde(untagged)]
+pub enum NumberSpec {
+    /// A real number.
+    Real(f64),
+    /// `[re, im]`.
+    Complex(ComplexSpec),
+}
+
+impl NumberSpec {
+    fn value(&self, key: &str) -> Result<Complex64> {
+        match self {
+            NumberSpec::Real(x) => Ok(Complex64::new(require_finite(key, *x)?, 0.0)),
+            NumberSpec::Complex(c) => complex(key, *c),
+        }
+    }
+}
+
+/// A real or complex 3-vector (`[x, y, z]` or `[[re, im], [re, im], [re, im]]`).
+#[derive(Clone, Debug, PartialEq, Deserialize, Serialize)]
+#[serde(untagged)]
+pub enum VectorSpec {
+    /// Real components.
+    Real([f64; 3]),
+    /// Complex components.
+    Complex([ComplexSpec; 3]),
+}
+
+impl VectorSpec {
+    fn value(&self, key: &str) -> Result<[Complex64; 3]> {
+        let mut v = [Complex64::new(0.0, 0.0); 3];
+        for (i, slot) in v.iter_mut().enumerate() {
+            let k = format!("{key}[{i}]");
+            *slot = match self {
+                VectorSpec::Real(r) => Complex64::new(require_finite(&k, r[i])?, 0.0),
+                VectorSpec::Complex(c) => complex(&k, c[i])?,
+            };
+        }
+        Ok(v)
+    }
+}
+
+/// One asymptotic coefficient `C_l` of projection `m` on the molecular axis.
+#[derive(Clone, Debug, PartialEq, Deserialize, Serialize)]
+#[serde(deny_unknown_fields)]
+pub struct AsymptoticSpec {
+    /// Angular momentum l.
+    pub l: u32,
+    /// Projection m' on the molecular z axis.
+    pub m: i32,
+    /// Coefficient `C_l` (real or `[re, im]`).
+    pub c: NumberSpec,
+}
+
 /// Ionization model as written in a target file.
+///
+/// Every variant is a struct variant: serde's internally tagged enums let unit variants accept
+/// unknown keys silently even with `deny_unknown_fields`.
 #[derive(Clone, Debug, PartialEq, Deserialize, Serialize)]
 #[serde(tag = "model", rename_all = "kebab-case", deny_unknown_fields)]
 pub enum IonizationSpec {
@@ -39,6 +105,27 @@ pub enum IonizationSpec {
         #[serde(default, skip_serializing_if = "Option::is_none")]
         exponent_au: Option<f64>,
     },
+    /// Plane-wave SFA with the channel's `dyson_orbital`.
+    Orbital {},
+    /// Molecular tunnelling theory from asymptotic coefficients.
+    Asymptotic {
+        /// Charge of the residual ion seen by the electron (default 1).
+        #[serde(default = "one")]
+        charge: f64,
+        /// Asymptotic coefficients `C_l` (at least one).
+        coefficients: Vec<AsymptoticSpec>,
+    },
+    /// Amplitude against the angle between the molecular axis and the field.
+    Table {
+        /// Angles (degrees), from 0 to 180, increasing.
+        beta_deg: Vec<f64>,
+        /// Complex amplitudes `[re, im]`, one per angle.
+        amplitude: Vec<ComplexSpec>,
+    },
+}
+
+fn one() -> f64 {
+    1.0
 }
 
 impl Default for IonizationSpec {
@@ -47,10 +134,8 @@ impl Default for IonizationSpec {
     }
 }
 
-/// Recombination model as written in a target file.
-///
-/// Every variant is a struct variant: serde's internally tagged enums let unit variants accept
-/// unknown keys silently even with `deny_unknown_fields`.
+/// Recombination model as written in a target file (struct variants only, see
+/// [`IonizationSpec`]).
 #[derive(Clone, Debug, PartialEq, Deserialize, Serialize)]
 #[serde(tag = "model", rename_all = "kebab-case", deny_unknown_fields)]
 pub enum RecombinationSpec {
@@ -62,10 +147,31 @@ pub enum RecombinationSpec {
         #[serde(default, skip_serializing_if = "Option::is_none")]
         exponent_au: Option<f64>,
     },
-    /// A fixed complex dipole vector `[[re, im], [re, im], [re, im]]` (x, y, z; a.u.).
+    /// A fixed complex dipole vector `[[re, im], [re, im], [re, im]]` (x, y, z; a.u.;
+    /// molecular frame).
     Constant {
         /// The vector (a.u.).
         dipole_au: [ComplexSpec; 3],
+    },
+    /// The channel's `dyson_orbital` as a linear combination of atomic Gaussians.
+    Lcao {
+        /// `length` (default) or `velocity`.
+        #[serde(default)]
+        form: DipoleForm,
+        /// `saddle` (default, k²/2 = Ω − Ip) or `photon` (k²/2 = Ω).
+        #[serde(default)]
+        momentum: ReturnMomentum,
+    },
+    /// Tabulated dipole against photon energy and angle.
+    Table {
+        /// Photon energies (eV), increasing.
+        energy_ev: Vec<f64>,
+        /// Angles between the return direction and the molecular axis (degrees), 0 to 180.
+        theta_deg: Vec<f64>,
+        /// Component along the return direction: one row per energy, one `[re, im]` per angle.
+        parallel_au: Vec<Vec<ComplexSpec>>,
+        /// Perpendicular component in the plane of k̂ and the axis, same layout.
+        perpendicular_au: Vec<Vec<ComplexSpec>>,
     },
 }
 
@@ -79,7 +185,7 @@ impl Default for RecombinationSpec {
 #[derive(Clone, Debug, PartialEq, Deserialize, Serialize)]
 #[serde(deny_unknown_fields)]
 pub struct ChannelSpec {
-    /// Unique label (e.g. "X", "A", "B").
+    /// Unique label (letters, digits, `+`, `-`, `_`; e.g. "X", "A", "B").
     pub label: String,
     /// Ionization potential (eV): energy of this ionic state above the neutral ground state.
     pub ip_ev: f64,
@@ -89,6 +195,53 @@ pub struct ChannelSpec {
     /// Recombination model (default: hydrogenic).
     #[serde(default)]
     pub recombination: RecombinationSpec,
+    /// Dyson orbital as atom-centred Cartesian Gaussians (bohr, molecular frame).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub dyson_orbital: Option<OrbitalSpec>,
+}
+
+/// A coupling between two channels (or a permanent dipole of one).
+#[derive(Clone, Debug, PartialEq, Deserialize, Serialize)]
+#[serde(deny_unknown_fields)]
+pub struct CouplingSpec {
+    /// The two channel labels `[m, n]`; the entry sets the (m, n) element and, by Hermiticity,
+    /// the (n, m) element. `[m, m]` sets a permanent dipole of state m (relative to the neutral).
+    pub channels: [String; 2],
+    /// Transition dipole ⟨m|μ|n⟩ in the molecular frame, a.u. (e·bohr).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub dipole_au: Option<VectorSpec>,
+    /// The same in debye (give one of the two).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub dipole_debye: Option<VectorSpec>,
+    /// Field-free coupling ⟨m|V|n⟩ (eV; off-diagonal only).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub energy_ev: Option<NumberSpec>,
+}
+
+/// Orientation grid as written in a target file.
+#[derive(Clone, Debug, PartialEq, Deserialize, Serialize)]
+#[serde(tag = "grid", rename_all = "kebab-case", deny_unknown_fields)]
+pub enum OrientationSpec {
+    /// One orientation, ZYZ Euler angles (degrees) of the molecular → lab rotation.
+    Fixed {
+        /// `[α, β, γ]` in degrees.
+        euler_deg: [f64; 3],
+    },
+    /// Gauss–Legendre grid in β only (α = γ = 0): for molecules symmetric about their z axis in
+    /// a field linearly polarised along lab z.
+    Axis {
+        /// Number of β nodes.
+        beta_points: usize,
+    },
+    /// Gauss–Legendre in cos β × uniform α and γ.
+    Full {
+        /// Number of β nodes.
+        beta_points: usize,
+        /// Number of α nodes.
+        alpha_points: usize,
+        /// Number of γ nodes (1 for molecules symmetric about their z axis).
+        gamma_points: usize,
+    },
 }
 
 /// An atom of the molecule: exactly one of the two position keys.
@@ -124,10 +277,19 @@ pub struct TargetSpec {
     pub atoms: Vec<AtomSpec>,
     /// Ionic channels (at least one).
     pub channels: Vec<ChannelSpec>,
+    /// Couplings between channels (none: uncoupled).
+    #[serde(default)]
+    pub couplings: Vec<CouplingSpec>,
+    /// Alignment distribution of the molecular z axis about the lab z axis.
+    #[serde(default)]
+    pub alignment: AlignmentDescription,
+    /// Orientation grid (default: one orientation for an atom, the full grid otherwise).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub orientations: Option<OrientationSpec>,
 }
 
 /// A validated channel, in atomic units.
-#[derive(Clone, Debug, PartialEq)]
+#[derive(Clone, Debug)]
 pub struct Channel {
     /// Label.
     pub label: String,
@@ -148,8 +310,19 @@ pub struct Atom {
     pub position: Vector3<f64>,
 }
 
+/// Orientation grid of a validated target.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub enum OrientationGridSpec {
+    /// One orientation (Euler angles in rad).
+    Fixed([f64; 3]),
+    /// β-only grid.
+    Axis(usize),
+    /// Full grid (β, α, γ nodes).
+    Full(usize, usize, usize),
+}
+
 /// A validated target.
-#[derive(Clone, Debug, PartialEq)]
+#[derive(Clone, Debug)]
 pub struct Target {
     /// Name.
     pub name: String,
@@ -161,8 +334,22 @@ pub struct Target {
     pub source: String,
     /// Atoms.
     pub atoms: Vec<Atom>,
-    /// Channels in file order.
+    /// Channels ordered by ionization potential, then label (not file order).
     pub channels: Vec<Channel>,
+    /// The ion in the basis of its channels: Ip, V, μ (molecular frame).
+    pub ion: IonModel,
+    /// Alignment distribution.
+    pub alignment: AlignmentDistribution,
+    /// Orientation grid.
+    pub orientations: OrientationGridSpec,
+}
+
+fn valid_label(label: &str) -> bool {
+    !label.is_empty()
+        && label
+            .chars()
+            .all(|c| c.is_ascii_alphanumeric() || c == '+' || c == '-' || c == '_')
+        && !label.contains("_to_")
 }
 
 impl TargetSpec {
@@ -182,54 +369,202 @@ impl TargetSpec {
         }
         let mut channels = Vec::with_capacity(self.channels.len());
         for (k, c) in self.channels.iter().enumerate() {
-            let key = |name: &str| format!("channels[{k}].{name}");
-            if c.label.trim().is_empty() {
-                return Err(Error::invalid(&key("label"), "\"\"", "must not be empty"));
-            }
-            if let Some(j) = self.channels[..k].iter().position(|o| o.label == c.label) {
-                return Err(Error::invalid(
-                    &key("label"),
-                    format!("{:?}", c.label),
-                    &format!("duplicates the label of channels[{j}]"),
-                ));
-            }
-            let ip = units::ev_to_au(require_positive(&key("ip_ev"), c.ip_ev)?);
-            let ionization = match &c.ionization {
-                IonizationSpec::Constant { amplitude } => IonizationModel::Constant {
-                    amplitude: complex(&key("ionization.amplitude"), *amplitude)?,
-                },
-                IonizationSpec::Gaussian { exponent_au } => IonizationModel::Gaussian {
-                    exponent: match exponent_au {
-                        Some(a) => require_positive(&key("ionization.exponent_au"), *a)?,
-                        None => sto1g_exponent(ip),
-                    },
-                },
-            };
-            let recombination = match &c.recombination {
-                RecombinationSpec::Hydrogenic {} => RecombinationModel::Hydrogenic { ip },
-                RecombinationSpec::Gaussian { exponent_au } => RecombinationModel::Gaussian {
-                    exponent: match exponent_au {
-                        Some(a) => require_positive(&key("recombination.exponent_au"), *a)?,
-                        None => sto1g_exponent(ip),
-                    },
-                },
-                RecombinationSpec::Constant { dipole_au } => {
-                    let mut v = [Complex64::new(0.0, 0.0); 3];
-                    for (i, c) in dipole_au.iter().enumerate() {
-                        v[i] = complex(&key(&format!("recombination.dipole_au[{i}]")), *c)?;
-                    }
-                    RecombinationModel::Constant {
-                        vector: Vector3::new(v[0], v[1], v[2]),
-                    }
-                }
-            };
-            channels.push(Channel {
-                label: c.label.clone(),
-                ip,
-                ionization,
-                recombination,
-            });
+            channels.push(self.channel(k, c)?);
         }
+        // Canonical order (Ip, then label): the file's order of channels changes no result.
+        channels.sort_by(|a, b| a.ip.total_cmp(&b.ip).then_with(|| a.label.cmp(&b.label)));
+        let atoms = self.atoms()?;
+        let ion = self.ion(&channels)?;
+        let alignment = self
+            .alignment
+            .build()
+            .map_err(|e| Error::Inconsistent(format!("alignment: {e}")))?;
+        let orientations = match &self.orientations {
+            Some(OrientationSpec::Fixed { euler_deg }) => {
+                for (i, a) in euler_deg.iter().enumerate() {
+                    require_finite(&format!("orientations.euler_deg[{i}]"), *a)?;
+                }
+                OrientationGridSpec::Fixed(euler_deg.map(f64::to_radians))
+            }
+            Some(OrientationSpec::Axis { beta_points }) => {
+                count("orientations.beta_points", *beta_points)?;
+                OrientationGridSpec::Axis(*beta_points)
+            }
+            Some(OrientationSpec::Full {
+                beta_points,
+                alpha_points,
+                gamma_points,
+            }) => {
+                count("orientations.beta_points", *beta_points)?;
+                count("orientations.alpha_points", *alpha_points)?;
+                count("orientations.gamma_points", *gamma_points)?;
+                OrientationGridSpec::Full(*beta_points, *alpha_points, *gamma_points)
+            }
+            None if atoms.len() <= 1 && channels.iter().all(is_isotropic_channel) => {
+                OrientationGridSpec::Fixed([0.0; 3])
+            }
+            None => OrientationGridSpec::Full(8, 8, 3),
+        };
+        Ok(Target {
+            name: self.name.clone(),
+            description: self.description.clone(),
+            invented: self.invented,
+            source: self.source.clone(),
+            atoms,
+            channels,
+            ion,
+            alignment,
+            orientations,
+        })
+    }
+
+    fn channel(&self, k: usize, c: &ChannelSpec) -> Result<Channel> {
+        let key = |name: &str| format!("channels[{k}].{name}");
+        if !valid_label(&c.label) {
+            return Err(Error::invalid(
+                &key("label"),
+                format!("{:?}", c.label),
+                "must be non-empty, made of letters, digits, '+', '-', '_', without \"_to_\"",
+            ));
+        }
+        if let Some(j) = self.channels[..k].iter().position(|o| o.label == c.label) {
+            return Err(Error::invalid(
+                &key("label"),
+                format!("{:?}", c.label),
+                &format!("duplicates the label of channels[{j}]"),
+            ));
+        }
+        let ip = units::ev_to_au(require_positive(&key("ip_ev"), c.ip_ev)?);
+        let orbital = match &c.dyson_orbital {
+            Some(spec) => Some(Arc::new(Orbital::from_spec(spec).map_err(|e| {
+                Error::Inconsistent(format!("{}: {e}", key("dyson_orbital")))
+            })?)),
+            None => None,
+        };
+        let need_orbital = |what: &str| {
+            orbital.clone().ok_or_else(|| {
+                Error::invalid(
+                    &key(what),
+                    "needs a Dyson orbital",
+                    "add dyson_orbital to the channel",
+                )
+            })
+        };
+        let ionization = match &c.ionization {
+            IonizationSpec::Constant { amplitude } => IonizationModel::Constant {
+                amplitude: complex(&key("ionization.amplitude"), *amplitude)?,
+            },
+            IonizationSpec::Gaussian { exponent_au } => IonizationModel::Gaussian {
+                exponent: match exponent_au {
+                    Some(a) => require_positive(&key("ionization.exponent_au"), *a)?,
+                    None => sto1g_exponent(ip),
+                },
+            },
+            IonizationSpec::Orbital {} => IonizationModel::Orbital {
+                orbital: need_orbital("ionization")?,
+            },
+            IonizationSpec::Asymptotic {
+                charge,
+                coefficients,
+            } => {
+                let mut terms = Vec::with_capacity(coefficients.len());
+                for (i, t) in coefficients.iter().enumerate() {
+                    let c =
+                        t.c.value(&key(&format!("ionization.coefficients[{i}].c")))?;
+                    terms.push(AsymptoticTerm::new(t.l, t.m, c));
+                }
+                IonizationModel::Asymptotic {
+                    orbital: AsymptoticOrbital::new(ip, *charge, terms)
+                        .map_err(|e| Error::Inconsistent(format!("{}: {e}", key("ionization"))))?,
+                }
+            }
+            IonizationSpec::Table {
+                beta_deg,
+                amplitude,
+            } => {
+                let mut values = Vec::with_capacity(amplitude.len());
+                for (i, a) in amplitude.iter().enumerate() {
+                    values.push(complex(&key(&format!("ionization.amplitude[{i}]")), *a)?);
+                }
+                IonizationModel::Table {
+                    beta: beta_deg.iter().map(|b| b.to_radians()).collect(),
+                    amplitude: values,
+                }
+            }
+        };
+        ionization.validate(&key("ionization"))?;
+        let recombination = match &c.recombination {
+            RecombinationSpec::Hydrogenic {} => RecombinationModel::Hydrogenic { ip },
+            RecombinationSpec::Gaussian { exponent_au } => RecombinationModel::Gaussian {
+                exponent: match exponent_au {
+                    Some(a) => require_positive(&key("recombination.exponent_au"), *a)?,
+                    None => sto1g_exponent(ip),
+                },
+            },
+            RecombinationSpec::Constant { dipole_au } => {
+                let mut v = [Complex64::new(0.0, 0.0); 3];
+                for (i, c) in dipole_au.iter().enumerate() {
+                    v[i] = complex(&key(&format!("recombination.dipole_au[{i}]")), *c)?;
+                }
+                RecombinationModel::Constant {
+                    vector: Vector3::new(v[0], v[1], v[2]),
+                }
+            }
+            RecombinationSpec::Lcao { form, momentum } => RecombinationModel::Lcao {
+                orbital: need_orbital("recombination")?,
+                form: *form,
+                momentum: *momentum,
+            },
+            RecombinationSpec::Table {
+                energy_ev,
+                theta_deg,
+                parallel_au,
+                perpendicular_au,
+            } => {
+                let flat = |rows: &[Vec<ComplexSpec>], name: &str| -> Result<Vec<Complex64>> {
+                    if rows.len() != energy_ev.len() {
+                        return Err(Error::invalid(
+                            &key(&format!("recombination.{name}")),
+                            format!("{} rows", rows.len()),
+                            &format!("needs one row per energy ({})", energy_ev.len()),
+                        ));
+                    }
+                    let mut out = Vec::new();
+                    for (r, row) in rows.iter().enumerate() {
+                        if row.len() != theta_deg.len() {
+                            return Err(Error::invalid(
+                                &key(&format!("recombination.{name}[{r}]")),
+                                format!("{} values", row.len()),
+                                &format!("needs one value per angle ({})", theta_deg.len()),
+                            ));
+                        }
+                        for (j, c) in row.iter().enumerate() {
+                            out.push(complex(
+                                &key(&format!("recombination.{name}[{r}][{j}]")),
+                                *c,
+                            )?);
+                        }
+                    }
+                    Ok(out)
+                };
+                RecombinationModel::Table {
+                    energies: energy_ev.iter().map(|e| units::ev_to_au(*e)).collect(),
+                    angles: theta_deg.iter().map(|t| t.to_radians()).collect(),
+                    parallel: flat(parallel_au, "parallel_au")?,
+                    perpendicular: flat(perpendicular_au, "perpendicular_au")?,
+                }
+            }
+        };
+        recombination.validate(&key("recombination"))?;
+        Ok(Channel {
+            label: c.label.clone(),
+            ip,
+            ionization,
+            recombination,
+        })
+    }
+
+    fn atoms(&self) -> Result<Vec<Atom>> {
         let mut atoms = Vec::with_capacity(self.atoms.len());
         for (k, a) in self.atoms.iter().enumerate() {
             let key = |name: &str| format!("atoms[{k}].{name}");
@@ -259,15 +594,131 @@ impl TargetSpec {
                 position: Vector3::from(position),
             });
         }
-        Ok(Target {
-            name: self.name.clone(),
-            description: self.description.clone(),
-            invented: self.invented,
-            source: self.source.clone(),
-            atoms,
-            channels,
-        })
+        Ok(atoms)
     }
+
+    /// The ion's Hamiltonian data from the channels and couplings.
+    fn ion(&self, channels: &[Channel]) -> Result<IonModel> {
+        let n = channels.len();
+        let zero = Complex64::new(0.0, 0.0);
+        let mut v = DMatrix::from_element(n, n, zero);
+        let mut mu = [
+            DMatrix::from_element(n, n, zero),
+            DMatrix::from_element(n, n, zero),
+            DMatrix::from_element(n, n, zero),
+        ];
+        let mut seen: Vec<(usize, usize)> = Vec::new();
+        for (k, c) in self.couplings.iter().enumerate() {
+            let key = |name: &str| format!("couplings[{k}].{name}");
+            let find = |label: &str, i: usize| {
+                channels
+                    .iter()
+                    .position(|c| c.label == label)
+                    .ok_or_else(|| {
+                        Error::invalid(
+                            &key(&format!("channels[{i}]")),
+                            format!("{label:?}"),
+                            "names no channel of the target",
+                        )
+                    })
+            };
+            let (a, b) = (find(&c.channels[0], 0)?, find(&c.channels[1], 1)?);
+            if let Some(j) = seen.iter().position(|&(x, y)| (x, y) == (a, b)) {
+                return Err(Error::invalid(
+                    &key("channels"),
+                    format!("{:?}", c.channels),
+                    &format!("repeats couplings[{j}]"),
+                ));
+            }
+            let dipole = match (&c.dipole_au, &c.dipole_debye) {
+                (Some(d), None) => Some(d.value(&key("dipole_au"))?),
+                (None, Some(d)) => Some(
+                    d.value(&key("dipole_debye"))?
+                        .map(|x| x * units::debye_to_au(1.0)),
+                ),
+                (Some(_), Some(_)) => {
+                    return Err(Error::invalid(
+                        &key("dipole_au"),
+                        "given with dipole_debye",
+                        "give the dipole in one unit only",
+                    ));
+                }
+                (None, None) => None,
+            };
+            let energy = match &c.energy_ev {
+                Some(e) if a == b => {
+                    return Err(Error::invalid(
+                        &key("energy_ev"),
+                        format!("{e:?}"),
+                        "a diagonal energy belongs in the channel's ip_ev",
+                    ));
+                }
+                Some(e) => Some(e.value(&key("energy_ev"))? / units::HARTREE_EV),
+                None => None,
+            };
+            if dipole.is_none() && energy.is_none() {
+                return Err(Error::invalid(
+                    &key("channels"),
+                    format!("{:?}", c.channels),
+                    "give dipole_au, dipole_debye or energy_ev",
+                ));
+            }
+            // A reverse entry already given must be the Hermitian conjugate of this one.
+            let reverse = seen.iter().position(|&(x, y)| (x, y) == (b, a));
+            if let Some(j) = reverse {
+                let tol = 1e-12;
+                let bad_mu = dipole.is_some_and(|d| {
+                    (0..3).any(|i| (d[i] - mu[i][(b, a)].conj()).norm() > tol * (1.0 + d[i].norm()))
+                });
+                let bad_v =
+                    energy.is_some_and(|e| (e - v[(b, a)].conj()).norm() > tol * (1.0 + e.norm()));
+                if bad_mu || bad_v {
+                    return Err(Error::invalid(
+                        &key("channels"),
+                        format!("{:?}", c.channels),
+                        &format!(
+                            "is not the complex conjugate of couplings[{j}]: the coupling matrix \
+                             would not be Hermitian (give each pair once)"
+                        ),
+                    ));
+                }
+            }
+            if a == b
+                && let Some(d) = dipole
+                && d.iter().any(|x| x.im != 0.0)
+            {
+                return Err(Error::invalid(
+                    &key("dipole_au"),
+                    format!("{d:?}"),
+                    "a permanent dipole must be real (Hermitian diagonal)",
+                ));
+            }
+            if let Some(d) = dipole {
+                for i in 0..3 {
+                    mu[i][(a, b)] = d[i];
+                    mu[i][(b, a)] = d[i].conj();
+                }
+            }
+            if let Some(e) = energy {
+                v[(a, b)] = e;
+                v[(b, a)] = e.conj();
+            }
+            seen.push((a, b));
+        }
+        IonModel::new(channels.iter().map(|c| c.ip).collect(), v, mu)
+            .map_err(|e| Error::Inconsistent(format!("couplings: {e}")))
+    }
+}
+
+fn count(key: &str, n: usize) -> Result<()> {
+    if n == 0 || n > 1000 {
+        return Err(Error::invalid(key, n, "must be between 1 and 1000"));
+    }
+    Ok(())
+}
+
+fn is_isotropic_channel(c: &Channel) -> bool {
+    c.ionization.is_isotropic() && c.recombination.is_isotropic()
 }
 
 impl Target {
@@ -284,7 +735,11 @@ impl Target {
                 ip_ev,
                 ionization: IonizationSpec::default(),
                 recombination: RecombinationSpec::default(),
+                dyson_orbital: None,
             }],
+            couplings: Vec::new(),
+            alignment: AlignmentDescription::default(),
+            orientations: None,
         }
         .validate()
         .map_err(|e| match e {
@@ -295,5 +750,11 @@ impl Target {
             },
             other => other,
         })
+    }
+
+    /// Whether every channel's models are independent of orientation and there is at most one
+    /// atom: orientation averaging then changes nothing.
+    pub fn is_isotropic(&self) -> bool {
+        self.atoms.len() <= 1 && self.channels.iter().all(is_isotropic_channel)
     }
 }

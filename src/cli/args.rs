@@ -27,8 +27,12 @@ pub enum Command {
     Check(CheckArgs),
     /// Solve the quantum orbits (complex ionization and return times) on an energy grid.
     Orbits(OrbitsArgs),
-    /// Compute the harmonic spectrum and write spectrum.json, spectrum.csv and spectrum.svg.
+    /// Compute the harmonic spectrum and write spectrum.json, spectrum.csv and spectrum.svg
+    /// (and, for several channels, the hole dynamics as holes.json, holes.csv, holes.svg).
     Spectrum(SpectrumArgs),
+    /// Compute the hole density matrix decoded by each harmonic and write holes.json,
+    /// holes.csv and holes.svg (populations and coherences vs. return delay).
+    Holes(HolesArgs),
 }
 
 /// Which target.
@@ -143,6 +147,20 @@ pub struct SpectrumArgs {
     /// Saddle summation.
     #[arg(long, value_enum, default_value_t = SumArg::Uniform)]
     pub sum: SumArg,
+    /// Output folder (created if missing).
+    #[arg(long, value_name = "DIR")]
+    pub out: PathBuf,
+}
+
+/// `holecast holes`.
+#[derive(Debug, Args)]
+pub struct HolesArgs {
+    #[command(flatten)]
+    pub target: TargetArgs,
+    #[command(flatten)]
+    pub laser: LaserArgs,
+    #[command(flatten)]
+    pub grid: GridArgs,
     /// Output folder (created if missing).
     #[arg(long, value_name = "DIR")]
     pub out: PathBuf,

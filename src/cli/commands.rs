@@ -1,21 +1,28 @@
 //! The commands: parse → settings → validate → run → export.
 
 use std::fmt::Write as _;
+use std::io::IsTerminal;
+use std::path::Path;
 
 use anyhow::{Result, anyhow, bail};
+use indicatif::{ProgressBar, ProgressStyle};
 use serde_json::{Map, Value, json};
 
 use holecast::cutoff::{Cutoffs, cutoffs};
 use holecast::dipole::SaddleSum;
 use holecast::field::{Field, TimeStructure};
 use holecast::laser::LaserSpec;
-use holecast::orbits::{ChannelPair, OrbitSettings, solve_orbits};
+use holecast::multichannel::{
+    MultichannelSettings, MultichannelSpectrum, assemble, coupling_components, trajectory_stage,
+};
+use holecast::orbits::{ChannelPair, OrbitSettings};
 use holecast::report::{self, orbits::LabelledTable, svg::Marker};
-use holecast::spectrum::{ChannelModels, SpectrumSettings, single_channel};
-use holecast::target::Channel;
+use holecast::target::{Channel, OrientationGridSpec, Target};
 use holecast::units;
 
-use super::args::{CheckArgs, Format, OrbitsArgs, SpectrumArgs, SumArg};
+use super::args::{
+    CheckArgs, Format, GridArgs, HolesArgs, LaserArgs, OrbitsArgs, SpectrumArgs, SumArg, TargetArgs,
+};
 use super::output::{write_all_atomic, write_atomic};
 use super::settings::{self, LoadedTarget};
 
@@ -44,7 +51,8 @@ fn summarise<'a>(
         .collect()
 }
 
-/// Index of the lowest-Ip channel (the reference channel of top-level keys).
+/// Index of the lowest-Ip channel (the reference channel of top-level keys); channels are
+/// ordered by Ip, so it is the first.
 fn reference(summaries: &[ChannelSummary<'_>]) -> usize {
     summaries
         .iter()
@@ -68,6 +76,47 @@ fn cutoff_json(c: &Cutoffs, omega: f64) -> Value {
     })
 }
 
+fn orientation_json(t: &Target) -> Value {
+    let mean = t.alignment.mean_cos2();
+    match t.orientations {
+        OrientationGridSpec::Fixed(e) => json!({
+            "grid": "fixed",
+            "euler_deg": e.map(f64::to_degrees),
+        }),
+        OrientationGridSpec::Axis(n) => {
+            json!({"grid": "axis", "beta_points": n, "mean_cos2": mean})
+        }
+        OrientationGridSpec::Full(b, a, g) => json!({
+            "grid": "full", "beta_points": b, "alpha_points": a, "gamma_points": g, "mean_cos2": mean,
+        }),
+    }
+}
+
+fn couplings_json(t: &Target) -> Value {
+    let n = t.channels.len();
+    let mut out = Vec::new();
+    for a in 0..n {
+        for b in a..n {
+            let mu: Vec<Value> = t
+                .ion
+                .dipole()
+                .iter()
+                .map(|m| json!([m[(a, b)].re, m[(a, b)].im]))
+                .collect();
+            let v = t.ion.coupling()[(a, b)];
+            let nonzero = t.ion.dipole().iter().any(|m| m[(a, b)].norm() > 0.0) || v.norm() > 0.0;
+            if nonzero {
+                out.push(json!({
+                    "channels": [t.channels[a].label, t.channels[b].label],
+                    "dipole_au": mu,
+                    "energy_ev": [v.re * units::HARTREE_EV, v.im * units::HARTREE_EV],
+                }));
+            }
+        }
+    }
+    Value::Array(out)
+}
+
 /// Metadata shared by every JSON output.
 fn metadata(
     command: &str,
@@ -79,16 +128,17 @@ fn metadata(
     let omega = field.omega();
     let up = field.ponderomotive_energy();
     let r = &summaries[reference(summaries)];
+    let t = &target.target;
     let mut m = Map::new();
     m.insert("holecast_version".into(), json!(env!("CARGO_PKG_VERSION")));
     m.insert("command".into(), json!(command));
     m.insert(
         "target".into(),
         json!({
-            "name": target.target.name,
+            "name": t.name,
             "file": target.file.as_ref().map(|p| p.display().to_string()),
-            "invented": target.target.invented,
-            "source": target.target.source,
+            "invented": t.invented,
+            "source": t.source,
         }),
     );
     m.insert(
@@ -123,28 +173,26 @@ fn metadata(
                 .collect(),
         ),
     );
+    m.insert("couplings".into(), couplings_json(t));
+    m.insert("orientations".into(), orientation_json(t));
     m
 }
 
-fn single<'a>(target: &'a LoadedTarget, what: &str) -> Result<&'a Channel> {
-    match target.target.channels.as_slice() {
-        [c] => Ok(c),
-        cs => bail!(
-            "{what} handles one channel; the target has {} ({})",
-            cs.len(),
-            cs.iter()
-                .map(|c| c.label.as_str())
-                .collect::<Vec<_>>()
-                .join(", ")
-        ),
-    }
+fn loaded(
+    target: &TargetArgs,
+    laser: &LaserArgs,
+    returns: u32,
+) -> Result<(LoadedTarget, LaserSpec, Field, OrbitSettings)> {
+    let target = settings::target(target)?;
+    let (spec, field) = settings::laser(laser)?;
+    let mut orbit = OrbitSettings::default();
+    orbit.discovery.max_returns = check_returns(returns)?;
+    Ok((target, spec, field, orbit))
 }
 
 /// `holecast check`.
 pub fn check(args: &CheckArgs) -> Result<()> {
-    let target = settings::target(&args.target)?;
-    let (laser, field) = settings::laser(&args.laser)?;
-    let orbit_settings = OrbitSettings::default();
+    let (target, laser, field, orbit_settings) = loaded(&args.target, &args.laser, 1)?;
     let summaries = summarise(&target, &field, &orbit_settings);
     let meta = metadata("check", &target, &laser, &field, &summaries);
     match args.format {
@@ -153,103 +201,163 @@ pub fn check(args: &CheckArgs) -> Result<()> {
             s.push('\n');
             print!("{s}");
         }
-        Format::Table | Format::Csv => {
-            if args.format == Format::Csv {
-                bail!("check prints a table or json (--format table|json)");
-            }
-            let omega = field.omega();
-            let mut out = String::new();
-            let t = &target.target;
-            writeln!(
-                out,
-                "target   {} ({}){}",
-                t.name,
-                if t.invented {
-                    "invented demo data"
-                } else {
-                    "reference data"
-                },
-                if t.source.is_empty() {
-                    String::new()
-                } else {
-                    format!("; source: {}", t.source)
-                }
-            )?;
-            let (kind, span) = match field.structure() {
-                TimeStructure::Periodic { period } => ("periodic, period", period),
-                TimeStructure::Pulse { start, end } => ("pulse, total duration", end - start),
-            };
-            writeln!(
-                out,
-                "laser    photon {:.4} eV ({:.1} nm), {kind} {:.3} fs, F0 = {:.5} a.u., Up = {:.3} eV",
-                units::au_to_ev(omega),
-                units::omega_to_wavelength_nm(omega),
-                units::au_to_fs(span),
-                field.peak_field(),
-                units::au_to_ev(field.ponderomotive_energy())
-            )?;
-            writeln!(
-                out,
-                "\n{:<8} {:>9} {:>8}  {:>22}  {:>22}  {:>16}",
-                "channel",
-                "Ip (eV)",
-                "Keldysh",
-                "classical cutoff",
-                "quantum cutoff",
-                "3.17Up+1.32Ip"
-            )?;
-            for s in &summaries {
-                let c = &s.cutoffs;
-                let q = match c.quantum {
-                    Some(q) => format!("{:.2} eV (H{:.2})", units::au_to_ev(q), q / omega),
-                    None => "not found".into(),
-                };
-                writeln!(
-                    out,
-                    "{:<8} {:>9.3} {:>8.4}  {:>22}  {:>22}  {:>13.2} eV",
-                    s.channel.label,
-                    units::au_to_ev(s.channel.ip),
-                    s.keldysh,
-                    format!(
-                        "{:.2} eV (H{:.2})",
-                        units::au_to_ev(c.classical),
-                        c.classical / omega
-                    ),
-                    q,
-                    units::au_to_ev(c.lewenstein)
-                )?;
-            }
-            print!("{out}");
-        }
+        Format::Csv => bail!("check prints a table or json (--format table|json)"),
+        Format::Table => print!("{}", check_text(&target.target, &field, &summaries)?),
     }
     Ok(())
 }
 
+fn check_text(t: &Target, field: &Field, summaries: &[ChannelSummary<'_>]) -> Result<String> {
+    let omega = field.omega();
+    let mut out = String::new();
+    writeln!(
+        out,
+        "target   {} ({}){}",
+        t.name,
+        if t.invented {
+            "invented demo data"
+        } else {
+            "reference data"
+        },
+        if t.source.is_empty() {
+            String::new()
+        } else {
+            format!("; source: {}", t.source)
+        }
+    )?;
+    let (kind, span) = match field.structure() {
+        TimeStructure::Periodic { period } => ("periodic, period", period),
+        TimeStructure::Pulse { start, end } => ("pulse, total duration", end - start),
+    };
+    writeln!(
+        out,
+        "laser    photon {:.4} eV ({:.1} nm), {kind} {:.3} fs, F0 = {:.5} a.u., Up = {:.3} eV",
+        units::au_to_ev(omega),
+        units::omega_to_wavelength_nm(omega),
+        units::au_to_fs(span),
+        field.peak_field(),
+        units::au_to_ev(field.ponderomotive_energy())
+    )?;
+    writeln!(
+        out,
+        "\n{:<8} {:>9} {:>8}  {:>22}  {:>22}  {:>16}",
+        "channel", "Ip (eV)", "Keldysh", "classical cutoff", "quantum cutoff", "3.17Up+1.32Ip"
+    )?;
+    for s in summaries {
+        let c = &s.cutoffs;
+        let q = match c.quantum {
+            Some(q) => format!("{:.2} eV (H{:.2})", units::au_to_ev(q), q / omega),
+            None => "not found".into(),
+        };
+        writeln!(
+            out,
+            "{:<8} {:>9.3} {:>8.4}  {:>22}  {:>22}  {:>13.2} eV",
+            s.channel.label,
+            units::au_to_ev(s.channel.ip),
+            s.keldysh,
+            format!(
+                "{:.2} eV (H{:.2})",
+                units::au_to_ev(c.classical),
+                c.classical / omega
+            ),
+            q,
+            units::au_to_ev(c.lewenstein)
+        )?;
+    }
+    let n = t.channels.len();
+    if n > 1 {
+        writeln!(
+            out,
+            "\ncouplings (molecular frame; dipole in a.u., field-free coupling in eV)"
+        )?;
+        let mut any = false;
+        for a in 0..n {
+            for b in a..n {
+                let mu: Vec<_> = t.ion.dipole().iter().map(|m| m[(a, b)]).collect();
+                let v = t.ion.coupling()[(a, b)];
+                if mu.iter().all(|x| x.norm() == 0.0) && v.norm() == 0.0 {
+                    continue;
+                }
+                any = true;
+                let fmt = |c: num_complex::Complex64| {
+                    if c.im == 0.0 {
+                        format!("{:.4}", c.re)
+                    } else {
+                        format!("{:.4}{:+.4}i", c.re, c.im)
+                    }
+                };
+                writeln!(
+                    out,
+                    "  {:>4} – {:<4} μ = ({}, {}, {})  V = {}",
+                    t.channels[a].label,
+                    t.channels[b].label,
+                    fmt(mu[0]),
+                    fmt(mu[1]),
+                    fmt(mu[2]),
+                    fmt(v * units::HARTREE_EV)
+                )?;
+            }
+        }
+        if !any {
+            writeln!(out, "  none: the channels are uncoupled")?;
+        }
+        let comp = coupling_components(t);
+        let pairs: usize = (0..n)
+            .map(|a| (0..n).filter(|&b| comp[a] == comp[b]).count())
+            .sum();
+        writeln!(out, "  channel pairs solved: {pairs} of {}", n * n)?;
+    }
+    let grid = match t.orientations {
+        OrientationGridSpec::Fixed(e) => format!(
+            "fixed orientation (Euler ZYZ {:.1}°, {:.1}°, {:.1}°)",
+            e[0].to_degrees(),
+            e[1].to_degrees(),
+            e[2].to_degrees()
+        ),
+        OrientationGridSpec::Axis(b) => format!("β grid of {b} points"),
+        OrientationGridSpec::Full(b, a, g) => {
+            format!("full grid {b} × {a} × {g} = {} orientations", b * a * g)
+        }
+    };
+    writeln!(
+        out,
+        "\norientations: {grid}; alignment ⟨cos²β⟩ = {:.4}",
+        t.alignment.mean_cos2()
+    )?;
+    Ok(out)
+}
+
+fn check_returns(n: u32) -> Result<u32> {
+    if !(1..=8).contains(&n) {
+        bail!("--returns {n}: must be between 1 and 8");
+    }
+    Ok(n)
+}
+
 /// `holecast orbits`.
 pub fn orbits(args: &OrbitsArgs) -> Result<()> {
-    let target = settings::target(&args.target)?;
-    let (laser, field) = settings::laser(&args.laser)?;
-    let mut orbit_settings = OrbitSettings::default();
-    orbit_settings.discovery.max_returns = returns(args.grid.returns)?;
+    let (target, laser, field, orbit_settings) =
+        loaded(&args.target, &args.laser, args.grid.returns)?;
     let summaries = summarise(&target, &field, &orbit_settings);
-    let channel = single(&target, "orbits")?;
     let r = &summaries[reference(&summaries)];
-    let energies = settings::energies(&args.grid, &field, channel.ip, &r.cutoffs)?;
-    let table = solve_orbits(
-        &field,
-        ChannelPair::single(channel.ip),
-        &energies,
-        &orbit_settings,
-    )?;
-    let rows = report::orbits::rows(
-        &[LabelledTable {
-            ionized: &channel.label,
-            recombined: &channel.label,
-            table: &table,
-        }],
-        field.omega(),
-    )
-    .map_err(|e| anyhow!(e))?;
+    let energies = settings::energies(&args.grid, &field, r.channel.ip, &r.cutoffs)?;
+    let settings = MultichannelSettings {
+        orbits: orbit_settings,
+        group_delay_step: None,
+        ..MultichannelSettings::default()
+    };
+    let t = &target.target;
+    let stage = trajectory_stage(&field, t, &energies, &settings)?;
+    let tables: Vec<LabelledTable<'_>> = stage
+        .pairs
+        .iter()
+        .map(|p| LabelledTable {
+            ionized: &t.channels[p.ion].label,
+            recombined: &t.channels[p.rec].label,
+            table: &p.table,
+        })
+        .collect();
+    let rows = report::orbits::rows(&tables, field.omega()).map_err(|e| anyhow!(e))?;
     let text = match args.format {
         Format::Json => {
             let meta = metadata("orbits", &target, &laser, &field, &summaries);
@@ -262,21 +370,14 @@ pub fn orbits(args: &OrbitsArgs) -> Result<()> {
         Some(path) => write_atomic(path, text.as_bytes())?,
         None => print!("{text}"),
     }
-    if table.failed_points() > 0 {
+    let failed: usize = stage.pairs.iter().map(|p| p.table.failed_points()).sum();
+    if failed > 0 {
         eprintln!(
-            "warning: {} orbit points did not converge; they are listed with converged = false \
-             and the reason",
-            table.failed_points()
+            "warning: {failed} orbit points did not converge; they are listed with converged = \
+             false and the reason"
         );
     }
     Ok(())
-}
-
-fn returns(n: u32) -> Result<u32> {
-    if !(1..=8).contains(&n) {
-        bail!("--returns {n}: must be between 1 and 8");
-    }
-    Ok(n)
 }
 
 /// Readable text of the orbit rows.
@@ -284,6 +385,8 @@ fn orbit_text(rows: &report::Table) -> String {
     use report::Cell;
     let col = |name: &str| rows.columns.iter().position(|c| c == name);
     let pick = [
+        "ionized_channel",
+        "recombined_channel",
         "order",
         "family",
         "half_cycle",
@@ -294,8 +397,8 @@ fn orbit_text(rows: &report::Table) -> String {
     ];
     let idx: Vec<Option<usize>> = pick.iter().map(|n| col(n)).collect();
     let mut out = format!(
-        "{:>8} {:<16} {:>4} {:>26} {:>26} {:>28} {:>5}\n",
-        "order", "family", "hc", "t_ion (fs)", "t_ret (fs)", "action Φ", "conv"
+        "{:>6} {:>8} {:<16} {:>4} {:>26} {:>26} {:>28} {:>5}\n",
+        "pair", "order", "family", "hc", "t_ion (fs)", "t_ret (fs)", "action Φ", "conv"
     );
     for r in &rows.rows {
         let cell = |i: usize| idx[i].map(|j| &r[j]);
@@ -313,108 +416,137 @@ fn orbit_text(rows: &report::Table) -> String {
             Some(Cell::Complex(Some(z))) => format!("{:+.5} {:+.5}i", z.re, z.im),
             _ => "-".into(),
         };
+        let pair = format!("{}→{}", num(cell(0)), num(cell(1)));
         out.push_str(&format!(
-            "{:>8} {:<16} {:>4} {:>26} {:>26} {:>28} {:>5}\n",
-            num(cell(0)),
-            num(cell(1)),
+            "{:>6} {:>8} {:<16} {:>4} {:>26} {:>26} {:>28} {:>5}\n",
+            pair,
             num(cell(2)),
             num(cell(3)),
             num(cell(4)),
             num(cell(5)),
-            num(cell(6))
+            num(cell(6)),
+            num(cell(7)),
+            num(cell(8))
         ));
     }
     out
 }
 
-/// `holecast spectrum`.
-pub fn spectrum(args: &SpectrumArgs, quiet: bool) -> Result<()> {
-    let target = settings::target(&args.target)?;
-    let (laser, field) = settings::laser(&args.laser)?;
-    let mut spectrum_settings = SpectrumSettings {
-        sum: match args.sum {
+/// Everything a spectrum or holes run produced.
+struct Run {
+    target: LoadedTarget,
+    meta: Map<String, Value>,
+    field: Field,
+    summaries_cutoff: Cutoffs,
+    spectrum: MultichannelSpectrum,
+    energies: Vec<f64>,
+}
+
+fn run(
+    command: &str,
+    target: &TargetArgs,
+    laser: &LaserArgs,
+    grid: &GridArgs,
+    sum: SumArg,
+    quiet: bool,
+) -> Result<Run> {
+    let (target, laser, field, orbit_settings) = loaded(target, laser, grid.returns)?;
+    let summaries = summarise(&target, &field, &orbit_settings);
+    let r = &summaries[reference(&summaries)];
+    let energies = settings::energies(grid, &field, r.channel.ip, &r.cutoffs)?;
+    let settings = MultichannelSettings {
+        sum: match sum {
             SumArg::Uniform => SaddleSum::Uniform,
             SumArg::Plain => SaddleSum::Plain,
         },
-        ..SpectrumSettings::default()
+        orbits: orbit_settings,
+        ..MultichannelSettings::default()
     };
-    spectrum_settings.orbits.discovery.max_returns = returns(args.grid.returns)?;
-    let summaries = summarise(&target, &field, &spectrum_settings.orbits);
-    let channel = single(&target, "spectrum")?;
-    let r = &summaries[reference(&summaries)];
-    let energies = settings::energies(&args.grid, &field, channel.ip, &r.cutoffs)?;
-    let models = ChannelModels {
-        ip: channel.ip,
-        ionization: channel.ionization.clone(),
-        recombination: channel.recombination.clone(),
+    let t = &target.target;
+    let stage = trajectory_stage(&field, t, &energies, &settings)?;
+    let bar = if quiet || !std::io::stderr().is_terminal() {
+        ProgressBar::hidden()
+    } else {
+        let b = ProgressBar::new(0);
+        b.set_style(
+            ProgressStyle::with_template("{msg} [{bar:40}] {pos}/{len} orientations ({eta})")
+                .unwrap_or_else(|_| ProgressStyle::default_bar()),
+        );
+        b.set_message("averaging");
+        b
     };
-    let spectrum = single_channel(&field, &models, &energies, &spectrum_settings)?;
-    let rows = report::spectrum::rows(&spectrum).map_err(|e| anyhow!(e))?;
-    let mut meta = metadata("spectrum", &target, &laser, &field, &summaries);
+    let progress = |done: usize, total: usize| {
+        bar.set_length(total as u64);
+        bar.set_position(done as u64);
+    };
+    let spectrum = assemble(&field, t, &stage, true, &progress)?;
+    bar.finish_and_clear();
+    let cutoff = r.cutoffs;
+    let mut meta = metadata(command, &target, &laser, &field, &summaries);
     meta.insert(
         "saddle_sum".into(),
-        serde_json::to_value(spectrum.sum).unwrap_or(Value::Null),
+        serde_json::to_value(settings.sum).unwrap_or(Value::Null),
     );
+    meta.insert("orientations_summed".into(), json!(spectrum.orientations));
+    Ok(Run {
+        target,
+        meta,
+        field,
+        summaries_cutoff: cutoff,
+        spectrum,
+        energies,
+    })
+}
+
+fn hole_files(run: &Run, dir: &Path) -> Result<Vec<(std::path::PathBuf, Vec<u8>)>> {
+    let rows = report::spectrum::hole_rows(&run.spectrum).map_err(|e| anyhow!(e))?;
+    let mut meta = run.meta.clone();
     meta.insert(
         "columns".into(),
         json!({
-            "intensity": "|D|^2 = sum over x,y,z of |D_k|^2, D(Ω) = ∫ <r>(t) e^{iΩt} dt over one period (periodic field) or the pulse, a.u.",
-            "power": "Ω^4 |D|^2, proportional to the emitted power (dipole form), arbitrary units",
-            "phase_rad": "arg of the dipole component along the driving polarization axis",
-            "group_delay_fs": "dφ/dΩ of the total by central difference over Ω ± 0.001ω",
-            "emission_time_fs": "Re t_r of the family's saddle, from the field crest at t = 0",
+            "delay_fs": "Re(t_r − t_i) of the reference channel's saddle: the time after ionization that the harmonic samples",
+            "population_*": "diagonal of the normalised hole density matrix at recombination",
+            "coherence_*_abs/_phase_rad": "off-diagonal elements (interaction picture, without the Bohr phases)",
+            "yield": "trace before normalisation: orientation-averaged ionization weight of the point",
         }),
     );
-    let omega = field.omega();
-    let mut markers = vec![Marker {
-        label: "classical cutoff".into(),
-        order: r.cutoffs.classical / omega,
-    }];
-    if let Some(q) = r.cutoffs.quantum {
-        markers.push(Marker {
-            label: "quantum cutoff".into(),
-            order: q / omega,
-        });
-    }
     let title = format!(
-        "{} — {:.0} nm, Up = {:.2} eV ({} sum)",
-        target.target.name,
-        units::omega_to_wavelength_nm(omega),
-        units::au_to_ev(field.ponderomotive_energy()),
-        match spectrum.sum {
-            SaddleSum::Uniform => "uniform",
-            SaddleSum::Plain => "plain",
-        }
+        "{} — hole populations vs return delay",
+        run.target.target.name
     );
-    let svg = report::svg::spectrum_figure(&spectrum, &markers, &title).map_err(|e| anyhow!(e))?;
-    std::fs::create_dir_all(&args.out)
-        .map_err(|e| anyhow!("cannot create output folder {}: {e}", args.out.display()))?;
-    let files = vec![
+    let svg = report::svg::hole_figure(&run.spectrum, &title).map_err(|e| anyhow!(e))?;
+    Ok(vec![
         (
-            args.out.join("spectrum.json"),
+            dir.join("holes.json"),
             report::json::document(meta, "points", &rows).into_bytes(),
         ),
         (
-            args.out.join("spectrum.csv"),
+            dir.join("holes.csv"),
             report::csv::document(&rows).into_bytes(),
         ),
-        (args.out.join("spectrum.svg"), svg.into_bytes()),
-    ];
-    write_all_atomic(&files)?;
-    let failed = spectrum.complete.iter().filter(|c| !**c).count();
-    if !quiet {
-        for (p, _) in &files {
-            eprintln!("wrote {}", p.display());
-        }
-    }
+        (dir.join("holes.svg"), svg.into_bytes()),
+    ])
+}
+
+fn create_dir(dir: &Path) -> Result<()> {
+    std::fs::create_dir_all(dir)
+        .map_err(|e| anyhow!("cannot create output folder {}: {e}", dir.display()))
+}
+
+fn summary_line(run: &Run) {
+    let omega = run.field.omega();
+    let s = &run.spectrum;
+    let failed = s.complete.iter().filter(|c| !**c).count();
+    let families: usize = s.pairs.iter().map(|p| p.families.len()).sum();
     println!(
-        "{} energies from H{:.2} to H{:.2}; {} orbit families; quantum cutoff {}; \
-         incomplete points: {failed}",
-        energies.len(),
-        energies.first().copied().unwrap_or(0.0) / omega,
-        energies.last().copied().unwrap_or(0.0) / omega,
-        spectrum.contributions.len(),
-        r.cutoffs
+        "{} energies from H{:.2} to H{:.2}; {} channel pairs, {families} orbit families, {} \
+         orientations; quantum cutoff {}; incomplete points: {failed}",
+        run.energies.len(),
+        run.energies.first().copied().unwrap_or(0.0) / omega,
+        run.energies.last().copied().unwrap_or(0.0) / omega,
+        s.pairs.len(),
+        s.orientations,
+        run.summaries_cutoff
             .quantum
             .map(|q| format!("H{:.2} ({:.2} eV)", q / omega, units::au_to_ev(q)))
             .unwrap_or_else(|| "not found".into()),
@@ -425,5 +557,100 @@ pub fn spectrum(args: &SpectrumArgs, quiet: bool) -> Result<()> {
              complete = false and the family columns are empty"
         );
     }
+}
+
+/// `holecast spectrum`.
+pub fn spectrum(args: &SpectrumArgs, quiet: bool) -> Result<()> {
+    let run = run(
+        "spectrum",
+        &args.target,
+        &args.laser,
+        &args.grid,
+        args.sum,
+        quiet,
+    )?;
+    let rows = report::spectrum::rows(&run.spectrum).map_err(|e| anyhow!(e))?;
+    let mut meta = run.meta.clone();
+    meta.insert(
+        "columns".into(),
+        json!({
+            "intensity": "|D|^2 = sum over x,y,z of |D_k|^2, D(Ω) = ∫ <r>(t) e^{iΩt} dt over one period (periodic field) or the pulse, coherent over orientations, a.u.",
+            "power": "Ω^4 |D|^2, proportional to the emitted power (dipole form), arbitrary units",
+            "phase_rad": "arg of the dipole component along the driving polarization axis",
+            "group_delay_fs": "dφ/dΩ by central difference over Ω ± 0.001ω",
+            "parallel/perpendicular": "dipole components along and across the driving polarization (in its plane)",
+            "ellipticity/polarization_angle_deg": "polarization state of the harmonic from the Stokes parameters of (parallel, perpendicular)",
+            "incoherent_pair_sum": "sum over channel pairs of |D_pair|^2: compare with intensity to see the channel interference",
+            "<ion>_to_<rec>_*": "contribution of ionization into channel <ion> and recombination into <rec>",
+            "*_emission_time_fs": "Re t_r of the family's saddle, from the field crest at t = 0",
+        }),
+    );
+    let omega = run.field.omega();
+    let mut markers = vec![Marker {
+        label: "classical cutoff".into(),
+        order: run.summaries_cutoff.classical / omega,
+    }];
+    if let Some(q) = run.summaries_cutoff.quantum {
+        markers.push(Marker {
+            label: "quantum cutoff".into(),
+            order: q / omega,
+        });
+    }
+    let title = format!(
+        "{} — {:.0} nm, Up = {:.2} eV ({} sum)",
+        run.target.target.name,
+        units::omega_to_wavelength_nm(omega),
+        units::au_to_ev(run.field.ponderomotive_energy()),
+        match args.sum {
+            SumArg::Uniform => "uniform",
+            SumArg::Plain => "plain",
+        }
+    );
+    let svg =
+        report::svg::spectrum_figure(&run.spectrum, &markers, &title).map_err(|e| anyhow!(e))?;
+    let mut files = vec![
+        (
+            args.out.join("spectrum.json"),
+            report::json::document(meta, "points", &rows).into_bytes(),
+        ),
+        (
+            args.out.join("spectrum.csv"),
+            report::csv::document(&rows).into_bytes(),
+        ),
+        (args.out.join("spectrum.svg"), svg.into_bytes()),
+    ];
+    if run.target.target.channels.len() > 1 {
+        files.extend(hole_files(&run, &args.out)?);
+    }
+    create_dir(&args.out)?;
+    write_all_atomic(&files)?;
+    if !quiet {
+        for (p, _) in &files {
+            eprintln!("wrote {}", p.display());
+        }
+    }
+    summary_line(&run);
+    Ok(())
+}
+
+/// `holecast holes`.
+pub fn holes(args: &HolesArgs, quiet: bool) -> Result<()> {
+    let run = run(
+        "holes",
+        &args.target,
+        &args.laser,
+        &args.grid,
+        SumArg::Uniform,
+        quiet,
+    )?;
+    let files = hole_files(&run, &args.out)?;
+    create_dir(&args.out)?;
+    write_all_atomic(&files)?;
+    if !quiet {
+        for (p, _) in &files {
+            eprintln!("wrote {}", p.display());
+        }
+    }
+    summary_line(&run);
     Ok(())
 }

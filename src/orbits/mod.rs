@@ -19,6 +19,7 @@ pub mod newton;
 pub mod subbarrier;
 mod track;
 
+use nalgebra::Vector3;
 use num_complex::Complex64;
 use serde::Serialize;
 
@@ -51,6 +52,8 @@ pub struct Saddle {
     pub e_ret: CVec3,
     /// Electric field at `t_i`.
     pub e_ion: CVec3,
+    /// Real electric field at the exit time `Re t_i`.
+    pub e_exit: Vector3<f64>,
     /// Determinant of the Hessian of Φ in `(t_r, t_i)`.
     pub det_hessian: Complex64,
     /// `sqrt(−det Φ'')` on the branch continued along the family.
@@ -77,6 +80,10 @@ pub enum FailureReason {
     PredictorTooLong,
     /// The solution has Im t_i ≤ 0 or Re τ ≤ 0.
     Unphysical,
+    /// The photon energy is below the recombining channel's ionization potential: no classical
+    /// return has that energy, the families pass a branch point at Ω = Ip and the
+    /// strong-field description does not hold. Not a failure: the point is left out.
+    BelowThreshold,
 }
 
 impl std::fmt::Display for FailureReason {
@@ -95,6 +102,9 @@ impl std::fmt::Display for FailureReason {
             FailureReason::AmbiguousAiryBranch => "Airy-variable branch ambiguous",
             FailureReason::PredictorTooLong => "continuation step could not be made small enough",
             FailureReason::Unphysical => "solution has Im t_ion <= 0 or Re tau <= 0",
+            FailureReason::BelowThreshold => {
+                "photon energy below the recombining channel's ionization potential"
+            }
         };
         f.write_str(s)
     }
@@ -125,6 +135,11 @@ pub enum OrbitPoint {
 }
 
 impl OrbitPoint {
+    /// Whether the point is a genuine failure (not a point left out below threshold).
+    pub fn is_failure(&self) -> bool {
+        matches!(self, OrbitPoint::Failed(f) if f.reason != FailureReason::BelowThreshold)
+    }
+
     /// The saddle, if solved.
     pub fn saddle(&self) -> Option<&Saddle> {
         match self {
@@ -273,7 +288,7 @@ impl OrbitTable {
         self.families
             .iter()
             .flat_map(|f| f.points.iter())
-            .filter(|p| matches!(p, OrbitPoint::Failed(_)))
+            .filter(|p| p.is_failure())
             .count()
     }
 
@@ -366,8 +381,12 @@ pub fn solve_orbits(
         max_iterations: settings.start_iterations,
         ..newton
     };
-    let mut order: Vec<usize> = (0..energies.len()).collect();
+    // Energies at or below the recombination threshold are left out (FailureReason::BelowThreshold).
+    let mut order: Vec<usize> = (0..energies.len())
+        .filter(|&i| energies[i] > pair.ip_rec)
+        .collect();
     order.sort_by(|&a, &b| energies[a].total_cmp(&energies[b]));
+    let below = |i: usize| energies[i] <= pair.ip_rec;
 
     let groups = families::discover(field, &settings.discovery);
     let mut table = OrbitTable {
@@ -412,6 +431,16 @@ pub fn solve_orbits(
                     results[i] = Some(r);
                 }
                 for (k, r) in results.into_iter().enumerate() {
+                    if below(k) {
+                        for p in points.iter_mut() {
+                            p.push(OrbitPoint::Failed(Failure {
+                                reason: FailureReason::BelowThreshold,
+                                iterations: 0,
+                                residual: f64::NAN,
+                            }));
+                        }
+                        continue;
+                    }
                     let r = r.ok_or_else(|| {
                         Error::Numerical(format!("energy point {k} was not visited"))
                     })?;
@@ -423,9 +452,13 @@ pub fn solve_orbits(
             }
             None => {
                 for p in points.iter_mut() {
-                    p.extend((0..n).map(|_| {
+                    p.extend((0..n).map(|k| {
                         OrbitPoint::Failed(Failure {
-                            reason: FailureReason::NoStart,
+                            reason: if below(k) {
+                                FailureReason::BelowThreshold
+                            } else {
+                                FailureReason::NoStart
+                            },
                             iterations: settings.start_iterations,
                             residual: f64::NAN,
                         })

@@ -62,8 +62,9 @@ impl Member {
         modulus(self.t_ret - other.t_ret).max(modulus(self.t_ion - other.t_ion))
     }
 
-    pub fn saddle(&self) -> Saddle {
+    pub fn saddle(&self, field: &Field) -> Saddle {
         Saddle {
+            e_exit: field.real_at(self.t_ion.re).1,
             t_ret: self.t_ret,
             t_ion: self.t_ion,
             action: self.eval.action,
@@ -241,7 +242,7 @@ pub(crate) fn sweep(
                 members: state
                     .members
                     .iter()
-                    .map(|m| OrbitPoint::Solved(m.saddle()))
+                    .map(|m| OrbitPoint::Solved(m.saddle(field)))
                     .collect(),
                 pair: state.zeta.map(|z| PairPoint {
                     zeta: z.zeta,

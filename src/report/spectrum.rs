@@ -1,4 +1,4 @@
-//! The spectrum as rows: totals, then every family contribution.
+//! The spectrum as rows: totals and polarization, then every channel pair and every family.
 
 use std::collections::BTreeMap;
 
@@ -6,7 +6,9 @@ use num_complex::Complex64;
 
 use super::{Cell, RowBuilder, Table};
 use crate::dipole::KernelKind;
-use crate::spectrum::{Spectrum, project};
+use crate::field::CVec3;
+use crate::multichannel::MultichannelSpectrum;
+use crate::spectrum::project;
 use crate::units;
 
 fn kind_text(k: KernelKind) -> &'static str {
@@ -23,8 +25,18 @@ fn fs(x: Option<f64>) -> Option<f64> {
     x.map(units::au_to_fs)
 }
 
-/// Column prefix of a contribution, e.g. `short_hc0`.
-pub fn contribution_key(label: &str, half_cycle: i32) -> String {
+fn norm2(v: &CVec3) -> f64 {
+    v.iter().map(|c| c.norm_sqr()).sum()
+}
+
+/// Column prefix of a channel pair, e.g. `X_to_A` (ionized in X, recombined into A).
+pub fn pair_key(s: &MultichannelSpectrum, p: usize) -> String {
+    let pair = &s.pairs[p];
+    format!("{}_to_{}", s.labels[pair.ion], s.labels[pair.rec])
+}
+
+/// Column prefix of a family, e.g. `short_hc0` (`hcm1` for half cycle −1).
+pub fn family_key(label: &str, half_cycle: i32) -> String {
     if half_cycle < 0 {
         format!("{label}_hcm{}", -half_cycle)
     } else {
@@ -32,17 +44,33 @@ pub fn contribution_key(label: &str, half_cycle: i32) -> String {
     }
 }
 
-/// Rows: one per energy.
-pub fn rows(s: &Spectrum) -> Result<Table, String> {
-    let mut out = Table::default();
-    // Families with the same label summed over half cycles, in label order.
-    let mut labels: BTreeMap<String, Vec<usize>> = BTreeMap::new();
-    for (c, con) in s.contributions.iter().enumerate() {
-        labels.entry(con.label.to_string()).or_default().push(c);
+/// Dipole of each family label summed over channel pairs and half cycles, per energy.
+pub fn label_sums(s: &MultichannelSpectrum) -> BTreeMap<String, Vec<Option<CVec3>>> {
+    let mut out: BTreeMap<String, Vec<Option<CVec3>>> = BTreeMap::new();
+    for pair in &s.pairs {
+        for c in &pair.families {
+            let entry = out
+                .entry(c.label.to_string())
+                .or_insert_with(|| vec![None; s.energies.len()]);
+            for (e, d) in entry.iter_mut().zip(&c.dipole) {
+                if let Some(d) = d {
+                    *e = Some(e.unwrap_or_else(CVec3::zeros) + d);
+                }
+            }
+        }
     }
+    out
+}
+
+/// Rows: one per energy.
+pub fn rows(s: &MultichannelSpectrum) -> Result<Table, String> {
+    let mut out = Table::default();
     let phases = s.phases();
+    let labels = label_sums(s);
     for (k, phase) in phases.iter().enumerate() {
         let d = s.total[k];
+        let (par, perp) = s.polarization_components(k);
+        let state = s.polarization_state(k);
         let mut r = RowBuilder::default();
         r.real("order", Some(s.energies[k] / s.omega))
             .real("energy_ev", Some(units::au_to_ev(s.energies[k])))
@@ -53,36 +81,86 @@ pub fn rows(s: &Spectrum) -> Result<Table, String> {
             .push("complete", Cell::Bool(s.complete[k]))
             .complex("dipole_x", Some(d.x))
             .complex("dipole_y", Some(d.y))
-            .complex("dipole_z", Some(d.z));
-        for (label, members) in &labels {
-            let mut sum = crate::field::CVec3::zeros();
-            let mut any = false;
-            for &c in members {
-                if let Some(v) = s.contributions[c].dipole[k] {
-                    sum += v;
-                    any = true;
-                }
-            }
-            let i = any.then(|| sum.iter().map(|c| c.norm_sqr()).sum::<f64>());
-            r.real(format!("{label}_intensity"), i);
-        }
-        for con in &s.contributions {
-            let key = contribution_key(&con.label.to_string(), con.half_cycle);
-            let v = con.dipole[k];
-            let par: Option<Complex64> = v.map(|v| project(&s.axis, &v));
-            r.real(
-                format!("{key}_intensity"),
-                v.map(|v| v.iter().map(|c| c.norm_sqr()).sum()),
-            )
-            .real(format!("{key}_phase_rad"), par.map(|p| p.arg()))
-            .real(format!("{key}_emission_time_fs"), fs(con.emission_time[k]))
-            .real(format!("{key}_group_delay_fs"), fs(con.group_delay[k]))
-            .push(
-                format!("{key}_kernel"),
-                Cell::Text(kind_text(con.kind[k]).into()),
+            .complex("dipole_z", Some(d.z))
+            .complex("parallel", Some(par))
+            .complex("perpendicular", Some(perp))
+            .real("ellipticity", state.map(|s| s.0))
+            .real("polarization_angle_deg", state.map(|s| s.1.to_degrees()))
+            .real(
+                "incoherent_pair_sum",
+                Some(s.pairs.iter().map(|p| norm2(&p.dipole[k])).sum()),
             );
+        for (label, v) in &labels {
+            r.real(format!("{label}_intensity"), v[k].map(|d| norm2(&d)));
+        }
+        for (p, pair) in s.pairs.iter().enumerate() {
+            let key = pair_key(s, p);
+            let dp = pair.dipole[k];
+            r.real(format!("{key}_intensity"), Some(norm2(&dp)))
+                .real(
+                    format!("{key}_phase_rad"),
+                    Some(project(&s.axis, &dp).arg()),
+                )
+                .real(format!("{key}_group_delay_fs"), fs(pair.group_delay[k]));
+        }
+        for (p, pair) in s.pairs.iter().enumerate() {
+            let pk = pair_key(s, p);
+            for con in &pair.families {
+                let key = format!(
+                    "{pk}_{}",
+                    family_key(&con.label.to_string(), con.half_cycle)
+                );
+                let v = con.dipole[k];
+                let par: Option<Complex64> = v.map(|v| project(&s.axis, &v));
+                r.real(format!("{key}_intensity"), v.map(|v| norm2(&v)))
+                    .real(format!("{key}_phase_rad"), par.map(|p| p.arg()))
+                    .real(format!("{key}_emission_time_fs"), fs(con.emission_time[k]))
+                    .real(format!("{key}_group_delay_fs"), fs(con.group_delay[k]))
+                    .push(
+                        format!("{key}_kernel"),
+                        Cell::Text(kind_text(con.kind[k]).into()),
+                    );
+            }
         }
         out.add(r)?;
+    }
+    Ok(out)
+}
+
+/// Hole-dynamics rows: one per (reference family, energy).
+pub fn hole_rows(s: &MultichannelSpectrum) -> Result<Table, String> {
+    let mut out = Table::default();
+    let n = s.labels.len();
+    for h in &s.holes {
+        for (k, point) in h.points.iter().enumerate() {
+            let mut r = RowBuilder::default();
+            r.real("order", Some(s.energies[k] / s.omega))
+                .real("energy_ev", Some(units::au_to_ev(s.energies[k])))
+                .push("family", Cell::Text(h.label.to_string()))
+                .push("half_cycle", Cell::Int(i64::from(h.half_cycle)))
+                .real("t_ion_fs", point.as_ref().map(|p| units::au_to_fs(p.t_ion)))
+                .real("t_ret_fs", point.as_ref().map(|p| units::au_to_fs(p.t_ret)))
+                .real(
+                    "delay_fs",
+                    point.as_ref().map(|p| units::au_to_fs(p.t_ret - p.t_ion)),
+                )
+                .real("yield", point.as_ref().map(|p| p.yield_weight));
+            for (i, label) in s.labels.iter().enumerate() {
+                r.real(
+                    format!("population_{label}"),
+                    point.as_ref().map(|p| p.rho[(i, i)].re),
+                );
+            }
+            for i in 0..n {
+                for j in i + 1..n {
+                    let c = point.as_ref().map(|p| p.rho[(i, j)]);
+                    let key = format!("coherence_{}_{}", s.labels[i], s.labels[j]);
+                    r.real(format!("{key}_abs"), c.map(|c| c.norm()))
+                        .real(format!("{key}_phase_rad"), c.map(|c| c.arg()));
+                }
+            }
+            out.add(r)?;
+        }
     }
     Ok(out)
 }

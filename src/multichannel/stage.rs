@@ -1,0 +1,238 @@
+//! The trajectory stage of a molecule: one orbit table per coupled channel pair, solved once.
+
+use std::collections::HashMap;
+use std::sync::Arc;
+
+use nalgebra::Vector3;
+
+use super::MultichannelSettings;
+use crate::dipole::{Kernels, kernels};
+use crate::error::{Error, Result};
+use crate::field::Field;
+use crate::hole::{FieldSamples, GridTime};
+use crate::orbits::{ChannelPair, OrbitTable, solve_orbits};
+use crate::target::Target;
+
+/// One channel pair `n → m` (ionize into `ion`, recombine into `rec`).
+#[derive(Clone, Debug)]
+pub struct PairStage {
+    /// Index of the channel the electron leaves.
+    pub ion: usize,
+    /// Index of the channel it recombines into.
+    pub rec: usize,
+    /// Orbits on the stage's grid (shared between pairs with the same two Ip).
+    pub table: Arc<OrbitTable>,
+    /// Continuum kernels of every family.
+    pub kernels: Kernels,
+    /// `(Re t_r, Re t_i)` of every solved saddle located on the hole-propagation grid, per
+    /// family and grid point (None where the saddle failed or no propagation is needed).
+    pub times: Vec<Vec<Option<(GridTime, GridTime)>>>,
+}
+
+/// Everything that depends on the field and the channel energies only.
+#[derive(Clone, Debug)]
+pub struct TrajectoryStage {
+    /// The photon energies requested (a.u.).
+    pub energies: Vec<f64>,
+    /// The solved grid: `energies`, or `Ω − δ, Ω, Ω + δ` triples for group delays.
+    pub grid: Vec<f64>,
+    /// Stride of the requested energies in the grid (1 or 3).
+    pub stride: usize,
+    /// δ of the group-delay triples (a.u.), if any.
+    pub delta: Option<f64>,
+    /// Channel pairs, diagonal ones first in channel order, then the others in (ion, rec) order.
+    pub pairs: Vec<PairStage>,
+    /// Field samples for the hole propagator, when the ion is not trivially uncoupled.
+    pub samples: Option<FieldSamples>,
+    /// The field's polarization axis, when the field is linearly polarised.
+    pub linear_axis: Option<Vector3<f64>>,
+    /// Number of distinct orbit tables solved (pairs with equal energies share one).
+    pub tables_solved: usize,
+    /// The saddle summation of the kernels.
+    pub sum: crate::dipole::SaddleSum,
+}
+
+impl TrajectoryStage {
+    /// Index into the grid of requested energy `k`.
+    pub fn central(&self, k: usize) -> usize {
+        k * self.stride + self.stride / 2
+    }
+
+    /// The pair stage of `(ion, rec)`, if that pair is coupled.
+    pub fn pair(&self, ion: usize, rec: usize) -> Option<&PairStage> {
+        self.pairs.iter().find(|p| p.ion == ion && p.rec == rec)
+    }
+}
+
+/// Channels connected through couplings (field-free or dipole), as a component index each.
+pub fn coupling_components(target: &Target) -> Vec<usize> {
+    let n = target.channels.len();
+    let mut component: Vec<usize> = (0..n).collect();
+    let linked = |a: usize, b: usize| {
+        target.ion.coupling()[(a, b)].norm() > 0.0
+            || target.ion.dipole().iter().any(|m| m[(a, b)].norm() > 0.0)
+    };
+    // Union by relabelling (n is small).
+    for a in 0..n {
+        for b in 0..n {
+            if a != b && linked(a, b) {
+                let (from, to) = (component[b], component[a]);
+                if from != to {
+                    for c in component.iter_mut() {
+                        if *c == from {
+                            *c = to;
+                        }
+                    }
+                }
+            }
+        }
+    }
+    component
+}
+
+/// Whether the interaction-picture propagator is the identity (no couplings, no permanent
+/// dipoles), so that the hole propagator can be skipped.
+pub fn propagation_needed(target: &Target) -> bool {
+    let ion = &target.ion;
+    !ion.is_uncoupled()
+        || ion
+            .dipole()
+            .iter()
+            .any(|m| (0..m.nrows()).any(|i| m[(i, i)].norm() > 0.0))
+}
+
+/// Solves the trajectory stage for `target` in `field` at photon energies `energies` (a.u.).
+pub fn trajectory_stage(
+    field: &Field,
+    target: &Target,
+    energies: &[f64],
+    settings: &MultichannelSettings,
+) -> Result<TrajectoryStage> {
+    let omega = field.omega();
+    let (stride, delta, grid) = match settings.group_delay_step {
+        Some(step) => {
+            if !(step.is_finite() && step > 0.0 && step < 0.5) {
+                return Err(Error::invalid(
+                    "group-delay step",
+                    step,
+                    "must lie in (0, 0.5) harmonic orders",
+                ));
+            }
+            let d = step * omega;
+            let mut g = Vec::with_capacity(3 * energies.len());
+            for &e in energies {
+                g.extend([e - d, e, e + d]);
+            }
+            (3, Some(d), g)
+        }
+        None => (1, None, energies.to_vec()),
+    };
+    for (k, c) in target.channels.iter().enumerate() {
+        if let Some((lo, hi)) = c.recombination.energy_range() {
+            let (glo, ghi) = grid
+                .iter()
+                .fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), &e| {
+                    (a.min(e), b.max(e))
+                });
+            if glo < lo || ghi > hi {
+                return Err(Error::invalid(
+                    &format!("channels[{k}].recombination.energy_ev"),
+                    format!(
+                        "{:.3}..{:.3} eV",
+                        crate::units::au_to_ev(lo),
+                        crate::units::au_to_ev(hi)
+                    ),
+                    &format!(
+                        "the table must cover the photon energies {:.3}..{:.3} eV",
+                        crate::units::au_to_ev(glo),
+                        crate::units::au_to_ev(ghi)
+                    ),
+                ));
+            }
+        }
+    }
+    let components = coupling_components(target);
+    let n = target.channels.len();
+    let mut list: Vec<(usize, usize)> = (0..n).map(|i| (i, i)).collect();
+    for a in 0..n {
+        for b in 0..n {
+            if a != b && components[a] == components[b] {
+                list.push((a, b));
+            }
+        }
+    }
+    let mut cache: HashMap<(u64, u64), Arc<OrbitTable>> = HashMap::new();
+    let mut pairs = Vec::with_capacity(list.len());
+    for (ion, rec) in list {
+        let pair = ChannelPair {
+            ip_ion: target.channels[ion].ip,
+            ip_rec: target.channels[rec].ip,
+        };
+        let key = (pair.ip_ion.to_bits(), pair.ip_rec.to_bits());
+        let table = match cache.get(&key) {
+            Some(t) => t.clone(),
+            None => {
+                let t = Arc::new(solve_orbits(field, pair, &grid, &settings.orbits)?);
+                cache.insert(key, t.clone());
+                t
+            }
+        };
+        let kernels = kernels(&table, settings.sum, settings.epsilon);
+        pairs.push(PairStage {
+            ion,
+            rec,
+            table,
+            kernels,
+            times: Vec::new(),
+        });
+    }
+    let samples = if propagation_needed(target) {
+        let (mut lo, mut hi) = (f64::INFINITY, f64::NEG_INFINITY);
+        for p in &pairs {
+            for f in &p.table.families {
+                for s in f.points.iter().filter_map(|p| p.saddle()) {
+                    lo = lo.min(s.t_ion.re);
+                    hi = hi.max(s.t_ret.re);
+                }
+            }
+        }
+        if !(lo.is_finite() && hi.is_finite()) {
+            return Err(Error::Numerical(
+                "no saddle converged: nothing to propagate the hole over".into(),
+            ));
+        }
+        let field_at = |t: f64| field.electric_real(t);
+        let s = FieldSamples::new(&field_at, lo - 1.0, hi + 1.0, settings.hole_step)
+            .map_err(|e| Error::Numerical(format!("hole propagator grid: {e}")))?;
+        for p in &mut pairs {
+            p.times = p
+                .table
+                .families
+                .iter()
+                .map(|f| {
+                    f.points
+                        .iter()
+                        .map(|pt| {
+                            let sd = pt.saddle()?;
+                            Some((s.locate(sd.t_ret.re).ok()?, s.locate(sd.t_ion.re).ok()?))
+                        })
+                        .collect()
+                })
+                .collect();
+        }
+        Some(s)
+    } else {
+        None
+    };
+    Ok(TrajectoryStage {
+        energies: energies.to_vec(),
+        grid,
+        stride,
+        delta,
+        pairs,
+        samples,
+        linear_axis: field.linear_axis(),
+        tables_solved: cache.len(),
+        sum: settings.sum,
+    })
+}
