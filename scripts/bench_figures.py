@@ -36,7 +36,7 @@ def show(label, bench_id, per=None, unit=None):
 def main():
     args = [a for a in sys.argv[1:] if not a.startswith("--")]
     if "--no-run" not in sys.argv:
-        benches = args or ["orbits"]
+        benches = args or ["orbits", "multichannel"]
         for b in benches:
             subprocess.run(["cargo", "bench", "--bench", b, "--", "--noplot"], cwd=ROOT, check=True)
     print("\nholecast benchmark figures (mean ± standard error of criterion's estimate)\n")
@@ -44,6 +44,12 @@ def main():
     show("family discovery (classical seeds, once per field)", "orbits/family_discovery")
     show("plateau spectrum H11–H41, Δq = 0.1, with group delays", "spectrum/plateau_301_energies_with_group_delay")
     show("plateau spectrum H11–H41, Δq = 0.1, no group delays", "spectrum/plateau_301_energies_no_group_delay")
+    print()
+    print("three channels (9 pairs), H9–H34 at Δq = 0.1, 192 orientations, 2 threads available:")
+    for name in ["with_group_delay", "no_group_delay"]:
+        show(f"  trajectory stage ({name.replace('_', ' ')})", f"multichannel/trajectory_stage_9_pairs_{name}")
+        show(f"  orientation loop ({name.replace('_', ' ')})", f"multichannel/assemble_192_orientations_{name}")
+        show(f"  whole spectrum ({name.replace('_', ' ')})", f"multichannel/whole_spectrum_{name}")
 
 
 if __name__ == "__main__":

@@ -407,3 +407,76 @@ fn bad_grids_are_named() {
         );
     }
 }
+
+#[test]
+fn molecular_spectrum_writes_pairs_and_holes() {
+    let dir = tempfile::tempdir().unwrap();
+    let out = dir.path().join("tri");
+    holecast()
+        .arg("spectrum")
+        .arg(channels("demo-linear-triatomic.json"))
+        .args([
+            "--intensity",
+            "1.5e14",
+            "--wavelength",
+            "800",
+            "--orders",
+            "15:25:2",
+            "--quiet",
+            "--out",
+        ])
+        .arg(&out)
+        .assert()
+        .success();
+    let v = json(&std::fs::read(out.join("spectrum.json")).unwrap());
+    let p = &v["points"][0];
+    for key in [
+        "X_to_X_intensity",
+        "X_to_A_intensity",
+        "A_to_B_intensity",
+        "incoherent_pair_sum",
+        "ellipticity",
+        "X_to_A_short_hc0_emission_time_fs",
+    ] {
+        assert!(p.get(key).is_some(), "{key}");
+    }
+    assert_eq!(v["couplings"].as_array().unwrap().len(), 2);
+    let h = json(&std::fs::read(out.join("holes.json")).unwrap());
+    let rows = h["points"].as_array().unwrap();
+    assert_eq!(
+        rows.len(),
+        6 * 4,
+        "six energies × four families of channel X"
+    );
+    for r in rows {
+        let sum: f64 = ["population_X", "population_A", "population_B"]
+            .iter()
+            .map(|k| r[k].as_f64().unwrap())
+            .sum();
+        assert!((sum - 1.0).abs() < 1e-12);
+        assert!(r["delay_fs"].as_f64().unwrap() > 0.0);
+    }
+    // The holes command writes the same hole table, and nothing else.
+    let out2 = dir.path().join("holes-only");
+    holecast()
+        .arg("holes")
+        .arg(channels("demo-linear-triatomic.json"))
+        .args([
+            "--intensity",
+            "1.5e14",
+            "--wavelength",
+            "800",
+            "--orders",
+            "15:25:2",
+            "--quiet",
+            "--out",
+        ])
+        .arg(&out2)
+        .assert()
+        .success();
+    assert_eq!(
+        std::fs::read(out.join("holes.csv")).unwrap(),
+        std::fs::read(out2.join("holes.csv")).unwrap()
+    );
+    assert!(!out2.join("spectrum.json").exists());
+}

@@ -61,7 +61,13 @@ fn log_panel(
     if ymax <= 0.0 {
         return Err("nothing to plot: the spectrum is zero everywhere".into());
     }
-    let ymin = ymax * 1e-10;
+    // Floor: a third of the smallest value within ten decades of the largest.
+    let smallest = curves
+        .iter()
+        .flat_map(|c| c.2.iter().map(|p| p.1))
+        .filter(|v| v.is_finite() && *v >= ymax * 1e-10)
+        .fold(ymax, f64::min);
+    let ymin = (smallest / 3.0).max(ymax * 1e-10);
     let mut builder = ChartBuilder::on(area);
     if let Some(c) = caption {
         builder.caption(c, ("sans-serif", 18));
@@ -82,12 +88,14 @@ fn log_panel(
     for (label, style, pts) in curves {
         let style = *style;
         let mut runs: Vec<Vec<(f64, f64)>> = vec![Vec::new()];
+        // On a fine grid a value below the floor breaks the line; on harmonic lines (coarse
+        // grid) it is skipped, so the line joins the allowed harmonics (e.g. the odd ones).
         for &(px, py) in pts {
             if py.is_finite() && py >= ymin {
                 if let Some(run) = runs.last_mut() {
                     run.push((px, py));
                 }
-            } else if runs.last().is_some_and(|r| !r.is_empty()) {
+            } else if !coarse && runs.last().is_some_and(|r| !r.is_empty()) {
                 runs.push(Vec::new());
             }
         }
