@@ -340,7 +340,8 @@ pub fn orbits(args: &OrbitsArgs) -> Result<()> {
         loaded(&args.target, &args.laser, args.grid.returns)?;
     let summaries = summarise(&target, &field, &orbit_settings);
     let r = &summaries[reference(&summaries)];
-    let energies = settings::energies(&args.grid, &field, r.channel.ip, &r.cutoffs)?;
+    let all: Vec<Cutoffs> = summaries.iter().map(|s| s.cutoffs).collect();
+    let energies = settings::energies(&args.grid, &field, r.channel.ip, &all)?;
     let settings = MultichannelSettings {
         orbits: orbit_settings,
         group_delay_step: None,
@@ -453,7 +454,8 @@ fn run(
     let (target, laser, field, orbit_settings) = loaded(target, laser, grid.returns)?;
     let summaries = summarise(&target, &field, &orbit_settings);
     let r = &summaries[reference(&summaries)];
-    let energies = settings::energies(grid, &field, r.channel.ip, &r.cutoffs)?;
+    let all: Vec<Cutoffs> = summaries.iter().map(|s| s.cutoffs).collect();
+    let energies = settings::energies(grid, &field, r.channel.ip, &all)?;
     let settings = MultichannelSettings {
         sum: match sum {
             SumArg::Uniform => SaddleSum::Uniform,

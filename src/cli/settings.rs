@@ -136,8 +136,9 @@ fn grid_points(a: f64, b: f64, s: f64) -> Vec<f64> {
     (0..=n).map(|k| a + s * k as f64).collect()
 }
 
-/// The photon energies (a.u.) requested, or the default range for the lowest-Ip channel.
-pub fn energies(args: &GridArgs, field: &Field, ip: f64, cutoffs: &Cutoffs) -> Result<Vec<f64>> {
+/// The photon energies (a.u.) requested, or the default range: from the first order above the
+/// lowest Ip `ip` to 20% past the highest cutoff among `cutoffs` (one per channel).
+pub fn energies(args: &GridArgs, field: &Field, ip: f64, cutoffs: &[Cutoffs]) -> Result<Vec<f64>> {
     let omega = field.omega();
     if let Some(text) = &args.orders {
         let (a, b, s) = parse_range(text, "--orders")?;
@@ -158,7 +159,12 @@ pub fn energies(args: &GridArgs, field: &Field, ip: f64, cutoffs: &Cutoffs) -> R
         TimeStructure::Pulse { .. } => 0.1,
     };
     let first = ((ip / omega) / step).floor() * step + step;
-    let top = 1.2 * cutoffs.quantum.unwrap_or(cutoffs.classical) / omega;
+    let top = 1.2
+        * cutoffs
+            .iter()
+            .map(|c| c.quantum.unwrap_or(c.classical))
+            .fold(0.0, f64::max)
+        / omega;
     Ok(grid_points(first, top.max(first + step), step)
         .into_iter()
         .map(|q| q * omega)
