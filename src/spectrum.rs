@@ -118,16 +118,48 @@ impl Spectrum {
         self.energies[k].powi(4) * self.intensity(k)
     }
 
-    /// Harmonic phases `arg(ê·D)` (rad) at every energy; `None` where `|ê·D|` is below
-    /// [`NEGLIGIBLE`] times the spectrum's largest (the phase of rounding noise is meaningless,
-    /// e.g. at the even harmonics of a centrosymmetric target).
+    /// Harmonic phases `arg(ê·D)` (rad) at every energy (see [`phases`]).
     pub fn phases(&self) -> Vec<Option<f64>> {
-        let values: Vec<Complex64> = self.total.iter().map(|d| project(&self.axis, d)).collect();
-        let largest = values.iter().map(|d| d.norm()).fold(0.0, f64::max);
-        values
-            .iter()
-            .map(|d| (largest > 0.0 && d.norm() >= NEGLIGIBLE * largest).then(|| d.arg()))
-            .collect()
+        phases(&self.total, &self.axis)
+    }
+}
+
+/// Harmonic phases `arg(ê·D)` (rad) of a dipole series; `None` where `|ê·D|` is below
+/// [`NEGLIGIBLE`] times the series' largest (the phase of rounding noise is meaningless, e.g. at
+/// the even harmonics of a centrosymmetric target).
+pub fn phases(total: &[CVec3], axis: &Vector3<f64>) -> Vec<Option<f64>> {
+    let values: Vec<Complex64> = total.iter().map(|d| project(axis, d)).collect();
+    let largest = values.iter().map(|d| d.norm()).fold(0.0, f64::max);
+    values
+        .iter()
+        .map(|d| (largest > 0.0 && d.norm() >= NEGLIGIBLE * largest).then(|| d.arg()))
+        .collect()
+}
+
+/// The solved grid for group delays: `Ω − δ, Ω, Ω + δ` for every requested energy with
+/// `δ = step·ω`, or the energies themselves when `step` is None. Returns (stride, δ, grid).
+pub fn group_delay_grid(
+    energies: &[f64],
+    step: Option<f64>,
+    omega: f64,
+) -> Result<(usize, Option<f64>, Vec<f64>)> {
+    match step {
+        Some(step) => {
+            if !(step.is_finite() && step > 0.0 && step < 0.5) {
+                return Err(Error::invalid(
+                    "group-delay step",
+                    step,
+                    "must lie in (0, 0.5) harmonic orders",
+                ));
+            }
+            let d = step * omega;
+            let mut g = Vec::with_capacity(3 * energies.len());
+            for &e in energies {
+                g.extend([e - d, e, e + d]);
+            }
+            Ok((3, Some(d), g))
+        }
+        None => Ok((1, None, energies.to_vec())),
     }
 }
 
@@ -159,24 +191,8 @@ pub fn single_channel(
     channel.ionization.validate("ionization")?;
     channel.recombination.validate("recombination")?;
     let omega = field.omega();
-    let (stride, offset, grid) = match settings.group_delay_step {
-        Some(step) => {
-            if !(step.is_finite() && step > 0.0 && step < 0.5) {
-                return Err(Error::invalid(
-                    "group-delay step",
-                    step,
-                    "must lie in (0, 0.5) harmonic orders",
-                ));
-            }
-            let delta = step * omega;
-            let mut g = Vec::with_capacity(3 * energies.len());
-            for &e in energies {
-                g.extend([e - delta, e, e + delta]);
-            }
-            (3, 1, g)
-        }
-        None => (1, 0, energies.to_vec()),
-    };
+    let (stride, _, grid) = group_delay_grid(energies, settings.group_delay_step, omega)?;
+    let offset = stride / 2;
     let table = solve_orbits(
         field,
         ChannelPair::single(channel.ip),

@@ -122,14 +122,9 @@ impl MultichannelSpectrum {
         Some((chi.tan(), 0.5 * s2.atan2(s1)))
     }
 
-    /// Harmonic phases `arg(ê·D)`, None where negligible (see [`NEGLIGIBLE`]).
+    /// Harmonic phases `arg(ê·D)`, None where negligible (see [`crate::spectrum::phases`]).
     pub fn phases(&self) -> Vec<Option<f64>> {
-        let values: Vec<Complex64> = self.total.iter().map(|d| project(&self.axis, d)).collect();
-        let largest = values.iter().map(|d| d.norm()).fold(0.0, f64::max);
-        values
-            .iter()
-            .map(|d| (largest > 0.0 && d.norm() >= NEGLIGIBLE * largest).then(|| d.arg()))
-            .collect()
+        crate::spectrum::phases(&self.total, &self.axis)
     }
 }
 

@@ -108,25 +108,8 @@ pub fn trajectory_stage(
     energies: &[f64],
     settings: &MultichannelSettings,
 ) -> Result<TrajectoryStage> {
-    let omega = field.omega();
-    let (stride, delta, grid) = match settings.group_delay_step {
-        Some(step) => {
-            if !(step.is_finite() && step > 0.0 && step < 0.5) {
-                return Err(Error::invalid(
-                    "group-delay step",
-                    step,
-                    "must lie in (0, 0.5) harmonic orders",
-                ));
-            }
-            let d = step * omega;
-            let mut g = Vec::with_capacity(3 * energies.len());
-            for &e in energies {
-                g.extend([e - d, e, e + d]);
-            }
-            (3, Some(d), g)
-        }
-        None => (1, None, energies.to_vec()),
-    };
+    let (stride, delta, grid) =
+        crate::spectrum::group_delay_grid(energies, settings.group_delay_step, field.omega())?;
     for (k, c) in target.channels.iter().enumerate() {
         if let Some((lo, hi)) = c.recombination.energy_range() {
             let (glo, ghi) = grid
