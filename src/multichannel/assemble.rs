@@ -212,7 +212,6 @@ impl<'a> Context<'a> {
                     .iter()
                     .map(|p| {
                         let ch = &target.channels[p.ion];
-                        let kappa = (2.0 * ch.ip).sqrt();
                         p.table
                             .families
                             .iter()
@@ -251,7 +250,6 @@ impl<'a> Context<'a> {
                                                     ion_keys.len() - 1
                                                 }
                                             };
-                                        let _ = kappa;
                                         Some(LinearSaddle {
                                             rec_slot: rec_index[key],
                                             ion_slot,
@@ -583,7 +581,7 @@ fn finish(ctx: &Context<'_>, mut acc: Accumulator, count: usize) -> Result<Multi
             families,
         });
     }
-    let holes = acc.holes.finish(&ctx.holes, stage);
+    let holes = acc.holes.finish(&ctx.holes);
     Ok(MultichannelSpectrum {
         omega: field.omega(),
         energies: stage.energies.clone(),

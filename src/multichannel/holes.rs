@@ -174,8 +174,7 @@ impl HoleAccumulator {
     }
 
     /// Normalised density matrices.
-    pub fn finish(&self, ctx: &HoleContext, stage: &TrajectoryStage) -> Vec<HoleDensity> {
-        let _ = stage;
+    pub fn finish(&self, ctx: &HoleContext) -> Vec<HoleDensity> {
         let n = ctx.channels;
         ctx.families
             .iter()

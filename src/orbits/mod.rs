@@ -471,8 +471,7 @@ pub fn solve_orbits(
         } else {
             None
         };
-        for (m, (label, pts)) in labels.iter().zip(points).enumerate() {
-            let _ = m;
+        for (label, pts) in labels.iter().zip(points) {
             table.families.push(Family {
                 label: *label,
                 half_cycle: group.half_cycle,
