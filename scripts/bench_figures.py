@@ -14,7 +14,10 @@ CRITERION = ROOT / "target" / "criterion"
 
 
 def mean_seconds(bench_id):
-    path = CRITERION / bench_id.replace("/", "_") / "new" / "estimates.json"
+    # criterion writes group/function for benchmark groups and group_function for ids with '/'.
+    path = CRITERION / bench_id / "new" / "estimates.json"
+    if not path.exists():
+        path = CRITERION / bench_id.replace("/", "_") / "new" / "estimates.json"
     if not path.exists():
         return None
     est = json.loads(path.read_text())
