@@ -2,19 +2,24 @@
 """Runs the criterion benchmarks and prints the figures the issues ask for.
 
 Usage: python3 scripts/bench_figures.py [--no-run] [bench ...]
-  --no-run   only read the last results under target/criterion
+  --no-run   only read the last results under target/criterion ($CARGO_TARGET_DIR/criterion
+             when that variable is set)
 """
 import json
+import os
 import pathlib
 import subprocess
 import sys
 
 ROOT = pathlib.Path(__file__).resolve().parent.parent
-CRITERION = ROOT / "target" / "criterion"
+CRITERION = pathlib.Path(os.environ.get("CARGO_TARGET_DIR", ROOT / "target")) / "criterion"
 
 
 def mean_seconds(bench_id):
+    # criterion stores `c.bench_function("a/b")` under a_b and group "a", function "b" under a/b.
     path = CRITERION / bench_id.replace("/", "_") / "new" / "estimates.json"
+    if not path.exists():
+        path = CRITERION / bench_id / "new" / "estimates.json"
     if not path.exists():
         return None
     est = json.loads(path.read_text())
@@ -44,6 +49,24 @@ def main():
     show("family discovery (classical seeds, once per field)", "orbits/family_discovery")
     show("plateau spectrum H11–H41, Δq = 0.1, with group delays", "spectrum/plateau_301_energies_with_group_delay")
     show("plateau spectrum H11–H41, Δq = 0.1, no group delays", "spectrum/plateau_301_energies_no_group_delay")
+    print("\nsaddle path against quadrature, same work (benches/quadrature.rs)\n")
+    pairs = [
+        ("hydrogen, 800 nm, H11–H41 (31 lines)", "quadrature/saddle_hydrogen_800nm_H11_H41",
+         [("quadrature, 64 steps/cycle (coarsest resolving step)",
+           "quadrature/quadrature_hydrogen_800nm_H11_H41_64_steps"),
+          ("quadrature, automatic step (192/cycle)",
+           "quadrature/quadrature_hydrogen_800nm_H11_H41_auto_steps")]),
+        ("demo triatomic (orbital), 16 orientations, 9 pairs", "quadrature/saddle_demo_800nm_H11_H41",
+         [("quadrature, 64 steps/cycle", "quadrature/quadrature_demo_800nm_H11_H41_64_steps")]),
+    ]
+    for label, saddle_id, quads in pairs:
+        show(f"saddle: {label}", saddle_id)
+        s = mean_seconds(saddle_id)
+        for qlabel, qid in quads:
+            show(f"  {qlabel}", qid)
+            q = mean_seconds(qid)
+            if s is not None and q is not None:
+                print(f"  {'→ time(quadrature) / time(saddle)':56s} {q[0] / s[0]:10.2f}")
 
 
 if __name__ == "__main__":
