@@ -341,6 +341,9 @@ fn plateau_is_independent_of_the_regulator() {
 
 // (e) agreement with the saddle path: the published validation numbers ----------------------
 
+/// (order, |SPA/quadrature|, arg if published).
+type NotesPoint = (f64, f64, Option<f64>);
+
 #[test]
 fn plain_saddle_sum_over_quadrature_reproduces_physics_notes_1_5() {
     // Physics notes §1.5 [NUM]: Gaussian s-orbital α = 1, Ip = 0.5, 800 nm, 2×10¹⁴ W/cm²,
@@ -351,7 +354,7 @@ fn plain_saddle_sum_over_quadrature_reproduces_physics_notes_1_5() {
     // (±0.002 in modulus) and ±0.003 rad, which also covers our window's ramps (the notes do not
     // give theirs; narrow falls reproduce their H21 best, see docs/validation.md).
     let target = gaussian_atom(0.5, 1.0);
-    let cases: [(f64, usize, &[(f64, f64, Option<f64>)]); 3] = [
+    let cases: [(f64, usize, &[NotesPoint]); 3] = [
         (
             1.0,
             192,
