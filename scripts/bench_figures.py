@@ -2,22 +2,24 @@
 """Runs the criterion benchmarks and prints the figures the issues ask for.
 
 Usage: python3 scripts/bench_figures.py [--no-run] [bench ...]
-  --no-run   only read the last results under target/criterion
+  --no-run   only read the last results under target/criterion ($CARGO_TARGET_DIR/criterion
+             when that variable is set)
 """
 import json
+import os
 import pathlib
 import subprocess
 import sys
 
 ROOT = pathlib.Path(__file__).resolve().parent.parent
-CRITERION = ROOT / "target" / "criterion"
+CRITERION = pathlib.Path(os.environ.get("CARGO_TARGET_DIR", ROOT / "target")) / "criterion"
 
 
 def mean_seconds(bench_id):
-    # criterion writes group/function for benchmark groups and group_function for ids with '/'.
-    path = CRITERION / bench_id / "new" / "estimates.json"
+    # criterion stores `c.bench_function("a/b")` under a_b and group "a", function "b" under a/b.
+    path = CRITERION / bench_id.replace("/", "_") / "new" / "estimates.json"
     if not path.exists():
-        path = CRITERION / bench_id.replace("/", "_") / "new" / "estimates.json"
+        path = CRITERION / bench_id / "new" / "estimates.json"
     if not path.exists():
         return None
     est = json.loads(path.read_text())
@@ -39,7 +41,7 @@ def show(label, bench_id, per=None, unit=None):
 def main():
     args = [a for a in sys.argv[1:] if not a.startswith("--")]
     if "--no-run" not in sys.argv:
-        benches = args or ["orbits", "multichannel"]
+        benches = args or ["orbits", "multichannel", "quadrature"]
         for b in benches:
             subprocess.run(["cargo", "bench", "--bench", b, "--", "--noplot"], cwd=ROOT, check=True)
     print("\nholecast benchmark figures (mean ± standard error of criterion's estimate)\n")
@@ -53,6 +55,24 @@ def main():
         show(f"  trajectory stage ({name.replace('_', ' ')})", f"multichannel/trajectory_stage_9_pairs_{name}")
         show(f"  orientation loop ({name.replace('_', ' ')})", f"multichannel/assemble_192_orientations_{name}")
         show(f"  whole spectrum ({name.replace('_', ' ')})", f"multichannel/whole_spectrum_{name}")
+    print("\nsaddle path against quadrature, same work (benches/quadrature.rs)\n")
+    pairs = [
+        ("hydrogen, 800 nm, H11–H41 (31 lines)", "quadrature/saddle_hydrogen_800nm_H11_H41",
+         [("quadrature, 64 steps/cycle (coarsest resolving step)",
+           "quadrature/quadrature_hydrogen_800nm_H11_H41_64_steps"),
+          ("quadrature, automatic step (192/cycle)",
+           "quadrature/quadrature_hydrogen_800nm_H11_H41_auto_steps")]),
+        ("demo triatomic (orbital), 16 orientations, 9 pairs", "quadrature/saddle_demo_800nm_H11_H41",
+         [("quadrature, 64 steps/cycle", "quadrature/quadrature_demo_800nm_H11_H41_64_steps")]),
+    ]
+    for label, saddle_id, quads in pairs:
+        show(f"saddle: {label}", saddle_id)
+        s = mean_seconds(saddle_id)
+        for qlabel, qid in quads:
+            show(f"  {qlabel}", qid)
+            q = mean_seconds(qid)
+            if s is not None and q is not None:
+                print(f"  {'→ time(quadrature) / time(saddle)':56s} {q[0] / s[0]:10.2f}")
 
 
 if __name__ == "__main__":

@@ -14,6 +14,7 @@ pub mod multichannel;
 pub mod orbital;
 pub mod orbits;
 pub mod orientation;
+pub mod quadrature;
 pub mod recombination;
 pub mod report;
 pub mod special;

@@ -106,6 +106,16 @@ pub enum SumArg {
     Plain,
 }
 
+/// How the spectrum is computed.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum MethodArg {
+    /// Quantum-orbit saddle points (fast; the default).
+    Saddle,
+    /// Numerical quadrature of the time-domain dipole, no saddle points in time (an
+    /// independent check; slower).
+    Quadrature,
+}
+
 /// `holecast check`.
 #[derive(Debug, Args)]
 pub struct CheckArgs {
@@ -147,6 +157,17 @@ pub struct SpectrumArgs {
     /// Saddle summation.
     #[arg(long, value_enum, default_value_t = SumArg::Uniform)]
     pub sum: SumArg,
+    /// Method: saddle points or numerical quadrature (quadrature ignores --sum and --returns).
+    #[arg(long, value_enum, default_value_t = MethodArg::Saddle)]
+    pub method: MethodArg,
+    /// Quadrature only: largest excursion time τ_max (cycles), where the excursion window ends
+    /// (default 0.97: first returns only).
+    #[arg(long, value_name = "CYCLES", requires = "method")]
+    pub excursion_cycles: Option<f64>,
+    /// Quadrature only: width of the window's falling ramp that ends at τ_max (cycles; default
+    /// 0.03). Use a wide ramp between the short and long excursion times to keep short orbits.
+    #[arg(long, value_name = "CYCLES", requires = "method")]
+    pub window_fall_cycles: Option<f64>,
     /// Output folder (created if missing).
     #[arg(long, value_name = "DIR")]
     pub out: PathBuf,

@@ -21,7 +21,8 @@ use holecast::target::{Channel, OrientationGridSpec, Target};
 use holecast::units;
 
 use super::args::{
-    CheckArgs, Format, GridArgs, HolesArgs, LaserArgs, OrbitsArgs, SpectrumArgs, SumArg, TargetArgs,
+    CheckArgs, Format, GridArgs, HolesArgs, LaserArgs, MethodArg, OrbitsArgs, SpectrumArgs, SumArg,
+    TargetArgs,
 };
 use super::output::{write_all_atomic, write_atomic};
 use super::settings::{self, LoadedTarget};
@@ -443,6 +444,22 @@ struct Run {
     energies: Vec<f64>,
 }
 
+/// Quadrature settings from the command line (`None` for the saddle method).
+fn quadrature_settings(
+    method: MethodArg,
+    excursion: Option<f64>,
+    fall: Option<f64>,
+) -> Option<holecast::quadrature::QuadratureSettings> {
+    let mut q = holecast::quadrature::QuadratureSettings::default();
+    if let Some(x) = excursion {
+        q.excursion_cycles = x;
+    }
+    if let Some(f) = fall {
+        q.window.fall_cycles = f;
+    }
+    (method == MethodArg::Quadrature).then_some(q)
+}
+
 fn run(
     command: &str,
     target: &TargetArgs,
@@ -450,6 +467,7 @@ fn run(
     grid: &GridArgs,
     sum: SumArg,
     quiet: bool,
+    quadrature: Option<holecast::quadrature::QuadratureSettings>,
 ) -> Result<Run> {
     let (target, laser, field, orbit_settings) = loaded(target, laser, grid.returns)?;
     let summaries = summarise(&target, &field, &orbit_settings);
@@ -465,7 +483,6 @@ fn run(
         ..MultichannelSettings::default()
     };
     let t = &target.target;
-    let stage = trajectory_stage(&field, t, &energies, &settings)?;
     let bar = if quiet || !std::io::stderr().is_terminal() {
         ProgressBar::hidden()
     } else {
@@ -481,14 +498,39 @@ fn run(
         bar.set_length(total as u64);
         bar.set_position(done as u64);
     };
-    let spectrum = assemble(&field, t, &stage, true, &progress)?;
+    let spectrum = match &quadrature {
+        None => {
+            let stage = trajectory_stage(&field, t, &energies, &settings)?;
+            assemble(&field, t, &stage, true, &progress)?
+        }
+        Some(q) => {
+            bar.set_message("quadrature");
+            holecast::quadrature::quadrature_spectrum(&field, t, &energies, q, &progress)?
+        }
+    };
     bar.finish_and_clear();
     let cutoff = r.cutoffs;
     let mut meta = metadata(command, &target, &laser, &field, &summaries);
-    meta.insert(
-        "saddle_sum".into(),
-        serde_json::to_value(settings.sum).unwrap_or(Value::Null),
-    );
+    match &quadrature {
+        None => {
+            meta.insert("method".into(), json!("saddle"));
+            meta.insert(
+                "saddle_sum".into(),
+                serde_json::to_value(settings.sum).unwrap_or(Value::Null),
+            );
+        }
+        Some(q) => {
+            meta.insert("method".into(), json!("quadrature"));
+            let steps = q.steps_per_cycle.unwrap_or_else(|| {
+                holecast::quadrature::automatic_steps_per_cycle(&field, t, &energies)
+            });
+            let mut v = serde_json::to_value(q).unwrap_or(Value::Null);
+            if let Some(o) = v.as_object_mut() {
+                o.insert("steps_per_cycle".into(), json!(steps));
+            }
+            meta.insert("quadrature".into(), v);
+        }
+    }
     meta.insert("orientations_summed".into(), json!(spectrum.orientations));
     Ok(Run {
         target,
@@ -563,6 +605,8 @@ fn summary_line(run: &Run) {
 
 /// `holecast spectrum`.
 pub fn spectrum(args: &SpectrumArgs, quiet: bool) -> Result<()> {
+    let quadrature =
+        quadrature_settings(args.method, args.excursion_cycles, args.window_fall_cycles);
     let run = run(
         "spectrum",
         &args.target,
@@ -570,6 +614,7 @@ pub fn spectrum(args: &SpectrumArgs, quiet: bool) -> Result<()> {
         &args.grid,
         args.sum,
         quiet,
+        quadrature,
     )?;
     let rows = report::spectrum::rows(&run.spectrum).map_err(|e| anyhow!(e))?;
     let mut meta = run.meta.clone();
@@ -603,9 +648,10 @@ pub fn spectrum(args: &SpectrumArgs, quiet: bool) -> Result<()> {
         run.target.target.name,
         units::omega_to_wavelength_nm(omega),
         units::au_to_ev(run.field.ponderomotive_energy()),
-        match args.sum {
-            SumArg::Uniform => "uniform",
-            SumArg::Plain => "plain",
+        match (args.method, args.sum) {
+            (MethodArg::Quadrature, _) => "quadrature, no",
+            (MethodArg::Saddle, SumArg::Uniform) => "uniform",
+            (MethodArg::Saddle, SumArg::Plain) => "plain",
         }
     );
     let svg =
@@ -621,7 +667,8 @@ pub fn spectrum(args: &SpectrumArgs, quiet: bool) -> Result<()> {
         ),
         (args.out.join("spectrum.svg"), svg.into_bytes()),
     ];
-    if run.target.target.channels.len() > 1 {
+    // The quadrature has no saddles, hence no hole density per orbit.
+    if run.target.target.channels.len() > 1 && args.method == MethodArg::Saddle {
         files.extend(hole_files(&run, &args.out)?);
     }
     create_dir(&args.out)?;
@@ -644,6 +691,7 @@ pub fn holes(args: &HolesArgs, quiet: bool) -> Result<()> {
         &args.grid,
         SumArg::Uniform,
         quiet,
+        None,
     )?;
     let files = hole_files(&run, &args.out)?;
     create_dir(&args.out)?;

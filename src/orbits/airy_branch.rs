@@ -57,8 +57,15 @@ impl ZetaBranch {
     /// `None` when the continuation is ambiguous (the step was too long).
     pub fn advance(&self, delta: Complex64, parameter: f64) -> Option<Self> {
         let w = (1.5 * delta) * (1.5 * delta);
+        // A step of (almost) zero length — the continuation landing again on an energy it has
+        // just visited — carries no information for the extrapolation: it must neither be
+        // extrapolated over nor become the previous point, or the next extrapolation divides by
+        // it (a step of 1.6e-14 relative once scaled the guess by 6e13 and picked a wrong cube
+        // root beyond the cutoff; tests/quadrature.rs, uniform across the cutoff).
+        let tiny = 1e-9 * self.parameter.abs().max(parameter.abs());
+        let degenerate = (parameter - self.parameter).abs() <= tiny;
         let guess = match self.previous {
-            Some((p, z)) if p != self.parameter => {
+            Some((p, z)) if !degenerate && (self.parameter - p).abs() > tiny => {
                 self.zeta + (self.zeta - z) * ((parameter - self.parameter) / (self.parameter - p))
             }
             _ => self.zeta,
@@ -86,7 +93,11 @@ impl ZetaBranch {
             sqrt,
             quarter,
             parameter,
-            previous: Some((self.parameter, self.zeta)),
+            previous: if degenerate {
+                self.previous
+            } else {
+                Some((self.parameter, self.zeta))
+            },
         })
     }
 }
