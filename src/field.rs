@@ -390,6 +390,18 @@ impl Field {
         })
     }
 
+    /// Whether `A(t + T/2) = −A(t)` (periodic field whose modes are all odd multiples of
+    /// `2π/T`): the second half of every period repeats the first with the field reversed.
+    pub fn half_wave_symmetric(&self) -> bool {
+        match self.structure {
+            TimeStructure::Periodic { period } => self.modes.iter().all(|m| {
+                let n = m.frequency * period / (2.0 * std::f64::consts::PI);
+                (n - n.round()).abs() < 1e-9 * n.max(1.0) && (n.round() as i64) % 2 == 1
+            }),
+            TimeStructure::Pulse { .. } => false,
+        }
+    }
+
     /// Modes of the vector potential.
     pub fn modes(&self) -> &[Mode] {
         &self.modes

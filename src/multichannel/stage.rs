@@ -10,7 +10,7 @@ use crate::dipole::{Kernels, kernels};
 use crate::error::{Error, Result};
 use crate::field::Field;
 use crate::hole::{FieldSamples, GridTime};
-use crate::orbits::{ChannelPair, OrbitTable, solve_orbits};
+use crate::orbits::{ChannelPair, OrbitTable, families, solve_orbits_seeded};
 use crate::target::Target;
 
 /// One channel pair `n → m` (ionize into `ion`, recombine into `rec`).
@@ -144,6 +144,8 @@ pub fn trajectory_stage(
             }
         }
     }
+    // The classical seeds depend on the field only: found once for all pairs.
+    let seeds = families::discover(field, &settings.orbits.discovery);
     let mut cache: HashMap<(u64, u64), Arc<OrbitTable>> = HashMap::new();
     let mut pairs = Vec::with_capacity(list.len());
     for (ion, rec) in list {
@@ -155,7 +157,13 @@ pub fn trajectory_stage(
         let table = match cache.get(&key) {
             Some(t) => t.clone(),
             None => {
-                let t = Arc::new(solve_orbits(field, pair, &grid, &settings.orbits)?);
+                let t = Arc::new(solve_orbits_seeded(
+                    field,
+                    pair,
+                    &grid,
+                    &settings.orbits,
+                    &seeds,
+                )?);
                 cache.insert(key, t.clone());
                 t
             }

@@ -129,8 +129,43 @@ pub fn discover(field: &Field, settings: &DiscoverySettings) -> Vec<SeedGroup> {
         max_returns: settings.max_returns as usize,
         ..ReturnSearch::default()
     };
-    let mut groups = Vec::new();
-    for w in field.birth_windows(settings.crest_threshold) {
+    let mut groups: Vec<SeedGroup> = Vec::new();
+    let windows = field.birth_windows(settings.crest_threshold);
+    let half_period = match field.structure() {
+        crate::field::TimeStructure::Periodic { period } if field.half_wave_symmetric() => {
+            Some(0.5 * period)
+        }
+        _ => None,
+    };
+    for (j, w) in windows.iter().enumerate() {
+        // With A(t + T/2) = −A(t) the trajectories of the second half cycle are those of the
+        // first shifted by T/2 (x → −x, same energies): reuse them.
+        if let (Some(half), Some(first)) = (half_period, windows.first())
+            && j > 0
+            && ((w.crest - first.crest) - half).abs() < 1e-5 * half
+        {
+            let shifted: Vec<SeedGroup> = groups
+                .iter()
+                .filter(|g| g.half_cycle == first.index)
+                .map(|g| SeedGroup {
+                    half_cycle: w.index,
+                    crest: w.crest,
+                    return_index: g.return_index,
+                    branches: g
+                        .branches
+                        .iter()
+                        .map(|b| ClassicalBranch {
+                            label: b.label,
+                            births: b.births.iter().map(|t| t + half).collect(),
+                            returns: b.returns.iter().map(|t| t + half).collect(),
+                            energies: b.energies.clone(),
+                        })
+                        .collect(),
+                })
+                .collect();
+            groups.extend(shifted);
+            continue;
+        }
         let n = settings.births_per_crest.max(8);
         let births: Vec<f64> = (0..n)
             .map(|i| w.start + (w.end - w.start) * (i as f64 + 0.5) / n as f64)

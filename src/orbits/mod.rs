@@ -350,6 +350,19 @@ pub fn solve_orbits(
     energies: &[f64],
     settings: &OrbitSettings,
 ) -> Result<OrbitTable> {
+    let groups = families::discover(field, &settings.discovery);
+    solve_orbits_seeded(field, pair, energies, settings, &groups)
+}
+
+/// [`solve_orbits`] with the classical seeds already found ([`families::discover`] depends on
+/// the field and the discovery settings only, so one discovery serves every channel pair).
+pub fn solve_orbits_seeded(
+    field: &Field,
+    pair: ChannelPair,
+    energies: &[f64],
+    settings: &OrbitSettings,
+    groups: &[families::SeedGroup],
+) -> Result<OrbitTable> {
     crate::error::require_positive("ionization potential (ionizing channel)", pair.ip_ion)?;
     crate::error::require_positive("ionization potential (recombining channel)", pair.ip_rec)?;
     if energies.is_empty() {
@@ -388,7 +401,6 @@ pub fn solve_orbits(
     order.sort_by(|&a, &b| energies[a].total_cmp(&energies[b]));
     let below = |i: usize| energies[i] <= pair.ip_rec;
 
-    let groups = families::discover(field, &settings.discovery);
     let mut table = OrbitTable {
         pair,
         energies: energies.to_vec(),
@@ -399,7 +411,7 @@ pub fn solve_orbits(
             TimeStructure::Periodic { .. } => None,
         },
     };
-    for group in &groups {
+    for group in groups {
         let labels: Vec<FamilyLabel> = group.branches.iter().map(|b| b.label).collect();
         let start = start_group(field, pair, group, &start_newton);
         let first = table.families.len();
