@@ -173,9 +173,16 @@ pub fn project(axis: &Vector3<f64>, d: &CVec3) -> Complex64 {
     d.x * axis.x + d.y * axis.y + d.z * axis.z
 }
 
-/// Phase derivative from values at `Ω − δ` and `Ω + δ`.
-fn phase_derivative(lo: Complex64, hi: Complex64, delta: f64) -> Option<f64> {
-    if lo.norm() == 0.0 || hi.norm() == 0.0 || !lo.is_finite() || !hi.is_finite() {
+/// `dφ/dΩ` by a central difference of the phase from values at `Ω − δ`, `Ω` and `Ω + δ`;
+/// None when any modulus is at or below `floor` (a phase of noise) or a value is not finite.
+pub fn phase_derivative(
+    lo: Complex64,
+    hi: Complex64,
+    centre: Complex64,
+    delta: f64,
+    floor: f64,
+) -> Option<f64> {
+    if lo.norm().min(hi.norm()).min(centre.norm()) <= floor || !lo.is_finite() || !hi.is_finite() {
         return None;
     }
     Some((hi / lo).arg() / (2.0 * delta))
@@ -224,7 +231,8 @@ pub fn single_channel(
             .map(|k| {
                 let step = settings.group_delay_step?;
                 let (lo, hi) = (dipole[central(k) - 1]?, dipole[central(k) + 1]?);
-                phase_derivative(project(&axis, &lo), project(&axis, &hi), step * omega)
+                let (lo, hi) = (project(&axis, &lo), project(&axis, &hi));
+                phase_derivative(lo, hi, lo, step * omega, 0.0)
             })
             .collect();
         contributions.push(Contribution {
@@ -247,11 +255,8 @@ pub fn single_channel(
             let step = settings.group_delay_step?;
             let i = k * stride + offset;
             let (lo, hi) = (project(&axis, &total[i - 1]), project(&axis, &total[i + 1]));
-            let centre = project(&axis, &total[i]).norm();
-            if lo.norm().min(hi.norm()).min(centre) < NEGLIGIBLE * largest {
-                return None;
-            }
-            phase_derivative(lo, hi, step * omega)
+            let centre = project(&axis, &total[i]);
+            phase_derivative(lo, hi, centre, step * omega, NEGLIGIBLE * largest)
         })
         .collect();
     Ok(Spectrum {

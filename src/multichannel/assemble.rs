@@ -483,19 +483,6 @@ pub fn assemble_serial(
     finish(&ctx, acc, list.len())
 }
 
-fn phase_derivative(
-    lo: Complex64,
-    hi: Complex64,
-    centre: Complex64,
-    delta: f64,
-    floor: f64,
-) -> Option<f64> {
-    if lo.norm().min(hi.norm()).min(centre.norm()) < floor || !lo.is_finite() || !hi.is_finite() {
-        return None;
-    }
-    Some((hi / lo).arg() / (2.0 * delta))
-}
-
 /// Turns the accumulated sums into the spectrum.
 fn finish(ctx: &Context<'_>, mut acc: Accumulator, count: usize) -> Result<MultichannelSpectrum> {
     let stage = ctx.stage;
@@ -532,7 +519,7 @@ fn finish(ctx: &Context<'_>, mut acc: Accumulator, count: usize) -> Result<Multi
     let delay = |v: &[CVec3], k: usize| -> Option<f64> {
         let d = stage.delta?;
         let i = central(k);
-        phase_derivative(
+        crate::spectrum::phase_derivative(
             project(&axis, &v[i - 1]),
             project(&axis, &v[i + 1]),
             project(&axis, &v[i]),

@@ -617,20 +617,6 @@ pub fn time_dipole(
     })
 }
 
-/// `dφ/dΩ` from the axis projections at `Ω ± δ`, None below the floor or if not finite.
-fn phase_derivative(
-    lo: Complex64,
-    hi: Complex64,
-    centre: Complex64,
-    delta: f64,
-    floor: f64,
-) -> Option<f64> {
-    if lo.norm().min(hi.norm()).min(centre.norm()) < floor || !lo.is_finite() || !hi.is_finite() {
-        return None;
-    }
-    Some((hi / lo).arg() / (2.0 * delta))
-}
-
 /// The harmonic spectrum by quadrature at photon energies `energies` (a.u.), as a
 /// [`MultichannelSpectrum`] so that the report writers apply unchanged: `pairs` filled (dipole
 /// and, if asked, group delay per pair), `families` and `holes` empty (no saddles), `complete`
@@ -694,7 +680,7 @@ pub fn quadrature_spectrum(
     let delay = |v: &[CVec3], k: usize| -> Option<f64> {
         let d = delta.filter(|_| pulse)?;
         let i = central(k);
-        phase_derivative(
+        crate::spectrum::phase_derivative(
             project(&axis, &v[i - 1]),
             project(&axis, &v[i + 1]),
             project(&axis, &v[i]),
