@@ -16,7 +16,9 @@ use holecast::multichannel::{
 };
 use holecast::orbits::{ChannelPair, OrbitSettings, solve_orbits};
 use holecast::quadrature::window::ExcursionWindow;
-use holecast::quadrature::{QuadratureSettings, WindowShape, quadrature_spectrum, time_dipole};
+use holecast::quadrature::{
+    MomentumIntegral, QuadratureSettings, WindowShape, quadrature_spectrum, time_dipole,
+};
 use holecast::target::{Target, TargetSpec};
 use holecast::units::HARTREE_EV;
 use num_complex::Complex64;
@@ -78,6 +80,15 @@ fn settings(steps: usize) -> QuadratureSettings {
         steps_per_cycle: Some(steps),
         group_delay_step: None,
         ..QuadratureSettings::default()
+    }
+}
+
+/// As [`settings`] with the momentum integral done by the shortcut (structure at the stationary
+/// momentum), the procedure of the physics notes' quadrature and of the saddle path's prefactor.
+fn shortcut(steps: usize) -> QuadratureSettings {
+    QuadratureSettings {
+        momentum: MomentumIntegral::Stationary,
+        ..settings(steps)
     }
 }
 
@@ -208,7 +219,7 @@ fn lattice_sum_equals_a_plain_one_period_double_sum() {
     let field = field_800();
     let target = gaussian_atom(0.5, 1.0);
     let steps = 96;
-    let s = settings(steps);
+    let s = shortcut(steps);
     let cycle = 2.0 * std::f64::consts::PI / field.omega();
     let window = ExcursionWindow {
         start: s.window.start_cycles * cycle,
@@ -368,7 +379,7 @@ fn plain_saddle_sum_over_quadrature_reproduces_physics_notes_1_5() {
         let q: Vec<f64> = points.iter().map(|p| p.0).collect();
         let e = orders(&field, &q);
         let spa = saddle(&field, &target, &e, SaddleSum::Plain);
-        let quad = quadrature(&field, &target, &e, &settings(steps));
+        let quad = quadrature(&field, &target, &e, &shortcut(steps));
         for (i, &(order, modulus, phase)) in points.iter().enumerate() {
             let r = ratio(&spa, &quad, i);
             assert!(
@@ -426,7 +437,7 @@ fn uniform_sum_across_the_cutoff_reproduces_physics_notes_2_3b() {
     let field = field_800_over(2.0);
     let q: Vec<f64> = (0..15).map(|k| 51.0 + 2.0 * k as f64).collect();
     let e = orders(&field, &q);
-    let quad = quadrature(&field, &target, &e, &settings(384));
+    let quad = quadrature(&field, &target, &e, &shortcut(384));
     let uni = saddle(&field, &target, &e, SaddleSum::Uniform);
     let plain = saddle(&field, &target, &e, SaddleSum::Plain);
     let both = both_members(&field, &target, &e);
@@ -574,7 +585,7 @@ fn demo_molecule_frames_match_a_collapsed_molecule_across_the_field() {
     let x_ratio = |spec: &TargetSpec| -> Vec<Complex64> {
         let t = spec.validate().unwrap();
         let s = saddle(&field, &t, &e, SaddleSum::Uniform);
-        let q = quadrature(&field, &t, &e, &settings(160));
+        let q = quadrature(&field, &t, &e, &shortcut(160));
         (0..e.len())
             .map(|k| s.pairs[0].dipole[k].z / q.pairs[0].dipole[k].z)
             .collect()
@@ -614,8 +625,8 @@ fn demo_molecule_saddle_against_quadrature() {
     let target = demo_spec().validate().unwrap();
     let e = orders(&field, &[21.0, 29.0, 35.0]);
     let s = saddle(&field, &target, &e, SaddleSum::Uniform);
-    let q1 = quadrature(&field, &target, &e, &settings(160));
-    let q2 = quadrature(&field, &target, &e, &settings(160));
+    let q1 = quadrature(&field, &target, &e, &shortcut(160));
+    let q2 = quadrature(&field, &target, &e, &shortcut(160));
     assert_eq!(q1.pairs.len(), 9);
     for k in 0..e.len() {
         assert_eq!(q1.total[k], q2.total[k], "deterministic");
