@@ -579,6 +579,66 @@ pub fn exact_integral(
     total
 }
 
+/// A measure centred on the given momenta (mean `q = 0`) with variance `σ² = 1/(iτ + w)`: the
+/// polynomial moments at a saddle whose Gaussian structure is in the phase
+/// ([`crate::orbits::equations`]), where the kinetic momenta `k` already include the shift of
+/// the stationary momentum.
+fn saddle_measure(sigma2: Complex64) -> Measure {
+    Measure {
+        lambda: 0.5 / sigma2,
+        mean: CVec3::zeros(),
+        sigma: sigma2.sqrt(),
+        exponent: Complex64::new(0.0, 0.0),
+        spreading: Complex64::new(0.0, 0.0),
+    }
+}
+
+/// The polynomial part of one ionization shell and one recombination shell at a saddle with
+/// both Gaussians in the phase: `E[P̄(k_r + q) (e·P(k_i + q))]` over `q` of variance `sigma2`
+/// (`1/(iτ + w)`), with the shells' normalisation prefactors and weights (molecular frame; the
+/// Gaussian exponentials themselves are in the phase).
+pub fn shell_pair_prefactor(
+    ion: &GaussianShell,
+    rec: &GaussianShell,
+    rec_form: Form,
+    k_ion: &CVec3,
+    k_ret: &CVec3,
+    e_ion: &CVec3,
+    sigma2: Complex64,
+) -> CVec3 {
+    pair_moment(
+        ion,
+        rec,
+        rec_form,
+        &saddle_measure(sigma2),
+        k_ion,
+        k_ret,
+        e_ion,
+    )
+}
+
+/// The polynomial part of one ionization shell in the phase: `E[e·P(k_i + q)]` (see
+/// [`shell_pair_prefactor`]).
+pub fn ion_shell_prefactor(
+    ion: &GaussianShell,
+    k_ion: &CVec3,
+    e_ion: &CVec3,
+    sigma2: Complex64,
+) -> Complex64 {
+    ion_moment(ion, &saddle_measure(sigma2), k_ion, e_ion)
+}
+
+/// The polynomial part of one recombination shell in the phase: `E[P̄(k_r + q)]` (see
+/// [`shell_pair_prefactor`]).
+pub fn rec_shell_prefactor(
+    rec: &GaussianShell,
+    form: Form,
+    k_ret: &CVec3,
+    sigma2: Complex64,
+) -> CVec3 {
+    rec_moment(rec, form, &saddle_measure(sigma2), k_ret)
+}
+
 /// `(2π/ρ)^{3/2}` on the principal branch: the spreading factor of the shortcut.
 pub fn stationary_spreading(rho: Complex64) -> Complex64 {
     let w = 2.0 * std::f64::consts::PI / rho;

@@ -91,6 +91,20 @@ impl HoleTrack {
         self.values.is_empty()
     }
 
+    /// A track made of given matrices (None: NaN entries), e.g. evaluated one by one.
+    pub fn from_matrices(channels: usize, matrices: &[Option<DMatrix<Complex64>>]) -> Self {
+        let nan = Complex64::new(f64::NAN, f64::NAN);
+        let mut values = Vec::with_capacity(matrices.len() * channels * channels);
+        for m in matrices {
+            for r in 0..channels {
+                for c in 0..channels {
+                    values.push(m.as_ref().map_or(nan, |m| m[(r, c)]));
+                }
+            }
+        }
+        HoleTrack { channels, values }
+    }
+
     /// The whole matrix of entry `k`.
     pub fn matrix(&self, k: usize) -> DMatrix<Complex64> {
         let c = self.channels;

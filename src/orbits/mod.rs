@@ -24,7 +24,7 @@ use num_complex::Complex64;
 use serde::Serialize;
 
 pub use coalescence::Coalescence;
-pub use equations::{ChannelPair, SaddleEval, evaluate};
+pub use equations::{ChannelPair, GaussianTerm, PhaseStructure, SaddleEval, evaluate};
 pub use families::{Branch, DiscoverySettings, FamilyLabel};
 pub use newton::{NewtonSettings, Termination};
 
@@ -62,6 +62,9 @@ pub struct Saddle {
     pub iterations: u32,
     /// Relative residual `max(|f₁|, |f₂|)/(Up + Ip)`.
     pub residual: f64,
+    /// Width `w` of the Gaussian structure in the phase (0 without): the spreading factor is
+    /// `(2π/(ε + iτ + w))^{3/2}` ([`equations`]).
+    pub width: f64,
 }
 
 /// Why a point has no saddle.
