@@ -388,6 +388,17 @@ impl TargetSpec {
             }
             Some(OrientationSpec::Axis { beta_points }) => {
                 count("orientations.beta_points", *beta_points)?;
+                if let Some(reason) = axial_symmetry_breaker(&channels, &ion) {
+                    return Err(Error::invalid(
+                        "orientations.grid",
+                        "axis",
+                        &format!(
+                            "a β-only grid needs a molecule symmetric about its z axis (the \
+                             average over the angle about that axis is then trivial), but {reason}; \
+                             use \"full\""
+                        ),
+                    ));
+                }
                 OrientationGridSpec::Axis(*beta_points)
             }
             Some(OrientationSpec::Full {
@@ -715,6 +726,82 @@ fn count(key: &str, n: usize) -> Result<()> {
         return Err(Error::invalid(key, n, "must be between 1 and 1000"));
     }
     Ok(())
+}
+
+/// The first feature of the channels or couplings that is not symmetric under rotations about
+/// the molecular z axis (None if all are): transverse transition dipoles, Dyson orbitals that
+/// change under such a rotation (checked numerically on their transforms at a few momenta, with
+/// an irrational angle, to 1e-10 relative), asymptotic terms with m' ≠ 0, constant
+/// recombination vectors off the axis. The tabulated models depend on the angle to the axis
+/// only and the atom-centred s models sit at the origin: they are symmetric by construction.
+fn axial_symmetry_breaker(channels: &[Channel], ion: &IonModel) -> Option<String> {
+    let n = channels.len();
+    for (a, name) in [(0, "x"), (1, "y")] {
+        let m = &ion.dipole()[a];
+        for r in 0..n {
+            for c in 0..n {
+                if m[(r, c)].norm() > 0.0 {
+                    return Some(format!(
+                        "the dipole between channels {} and {} has a {name} component",
+                        channels[r].label, channels[c].label
+                    ));
+                }
+            }
+        }
+    }
+    let orbital_breaks = |o: &Orbital| -> bool {
+        use crate::orbital::PlaneWaveProjection;
+        let (s, c) = 1.0_f64.sin_cos();
+        let ks = [
+            [0.3, -0.7, 0.4],
+            [1.1, 0.2, -0.5],
+            [-0.4, 0.9, 1.3],
+            [0.0, 0.6, 0.0],
+        ];
+        ks.iter().any(|k| {
+            let v = Vector3::new(k[0], k[1], k[2]).map(|x| Complex64::new(x, 0.0));
+            let w = Vector3::new(c * k[0] - s * k[1], s * k[0] + c * k[1], k[2])
+                .map(|x| Complex64::new(x, 0.0));
+            let (a, b) = (o.transform(&v), o.transform(&w));
+            (a - b).norm() > 1e-10 * a.norm().max(b.norm()).max(1e-300)
+        })
+    };
+    for ch in channels {
+        match &ch.ionization {
+            IonizationModel::Orbital { orbital } if orbital_breaks(orbital) => {
+                return Some(format!(
+                    "the Dyson orbital of channel {} (ionization) changes under a rotation about z",
+                    ch.label
+                ));
+            }
+            IonizationModel::Asymptotic { orbital } => {
+                if let Some(t) = orbital.terms().iter().find(|t| t.m_prime != 0) {
+                    return Some(format!(
+                        "the asymptotic ionization model of channel {} has a term with m' = {}",
+                        ch.label, t.m_prime
+                    ));
+                }
+            }
+            _ => {}
+        }
+        match &ch.recombination {
+            RecombinationModel::Lcao { orbital, .. } if orbital_breaks(orbital) => {
+                return Some(format!(
+                    "the Dyson orbital of channel {} (recombination) changes under a rotation \
+                     about z",
+                    ch.label
+                ));
+            }
+            RecombinationModel::Constant { vector } if vector.x.norm() + vector.y.norm() > 0.0 => {
+                return Some(format!(
+                    "the constant recombination vector of channel {} is not along z",
+                    ch.label
+                ));
+            }
+            _ => {}
+        }
+    }
+    None
 }
 
 fn is_isotropic_channel(c: &Channel) -> bool {

@@ -459,3 +459,126 @@ fn polarization_state_of_a_linear_response_is_linear_along_the_field() {
         assert!(e.abs() < 1e-12 && angle.abs() < 1e-12);
     }
 }
+
+// Regressions of issue-level defects --------------------------------------------------------
+
+#[test]
+fn axis_grid_is_refused_for_a_molecule_not_symmetric_about_its_axis() {
+    // A β-only grid samples the angle about the molecular axis at one value; that is exact only
+    // for a molecule symmetric about the axis (mathematics). Each kind of breaker must be named.
+    let base = r#"{
+      "name": "off-axis", "invented": true,
+      "channels": [
+        { "label": "X", "ip_ev": 14.0, "ionization": { "model": "orbital" }, "recombination": { "model": "lcao" },
+          "dyson_orbital": { "name": "ORBITAL", "terms": [ TERMS ] } },
+        { "label": "A", "ip_ev": 15.5, "ionization": { "model": "gaussian" }, "recombination": { "model": "hydrogenic" } }
+      ],
+      "couplings": [ { "channels": ["X", "A"], "dipole_au": DIPOLE } ],
+      "orientations": { "grid": "axis", "beta_points": 8 }
+    }"#;
+    let make = |terms: &str, dipole: &str| {
+        base.replace("TERMS", terms)
+            .replace("DIPOLE", dipole)
+            .replace("ORBITAL", "test orbital")
+    };
+    let sigma = r#"{ "centre_bohr": [0, 0, 1.1], "exponents_inv_bohr2": [0.5], "cartesian": "pz", "coefficient": [1, 0] },
+                   { "centre_bohr": [0, 0, -1.1], "exponents_inv_bohr2": [0.5], "cartesian": "s", "coefficient": [0.4, 0] }"#;
+    // Symmetric: accepted.
+    assert!(parse(&make(sigma, "[0, 0, 0.8]")).validate().is_ok());
+    // A transverse transition dipole.
+    let e = parse(&make(sigma, "[0.3, 0, 0.8]")).validate().unwrap_err();
+    assert!(e.to_string().contains("x component"), "{e}");
+    // An off-axis centre.
+    let off = r#"{ "centre_bohr": [0.5, 0, 1.1], "exponents_inv_bohr2": [0.5], "cartesian": "s", "coefficient": [1, 0] }"#;
+    let e = parse(&make(off, "[0, 0, 0.8]")).validate().unwrap_err();
+    assert!(
+        e.to_string().contains("changes under a rotation about z"),
+        "{e}"
+    );
+    // A π orbital on the axis.
+    let pi = r#"{ "centre_bohr": [0, 0, 0], "exponents_inv_bohr2": [0.5], "cartesian": "px", "coefficient": [1, 0] }"#;
+    let e = parse(&make(pi, "[0, 0, 0.8]")).validate().unwrap_err();
+    assert!(e.to_string().contains("orientations.grid"), "{e}");
+    // The full grid accepts the same molecule.
+    let full = make(pi, "[0.3, 0, 0.8]").replace(
+        r#""grid": "axis", "beta_points": 8"#,
+        r#""grid": "full", "beta_points": 4, "alpha_points": 4, "gamma_points": 3"#,
+    );
+    assert!(parse(&full).validate().is_ok());
+}
+
+#[test]
+fn total_group_delay_of_a_periodic_field_is_not_reported_as_an_emission_time() {
+    // For a periodic field the lines sum both half cycles, D = D₁(1 ± e^{iΩT/2}); the phase
+    // derivative of that sum is a half cycle's emission time plus T/4 (derived), so it is not
+    // reported for the total or the pairs; the families (one half cycle each) keep theirs. A
+    // pulse has no such sum and reports all.
+    let field = field();
+    let target = load("hydrogen.json").validate().unwrap();
+    let energies = orders(&field, (15..=29).step_by(2).map(f64::from));
+    let s = run(&target, &field, &energies, &MultichannelSettings::default());
+    assert!(s.group_delay.iter().all(|g| g.is_none()));
+    assert!(s.pairs[0].group_delay.iter().all(|g| g.is_none()));
+    assert!(
+        s.pairs[0]
+            .families
+            .iter()
+            .all(|f| f.group_delay.iter().all(|g| g.is_some()))
+    );
+    let pulse: LaserSpec = serde_json::from_str(
+        r#"{"colours": [{"wavelength_nm": 800, "intensity_wcm2": 1.5e14}],
+            "envelope": {"kind": "sin2", "fwhm_fs": 10}}"#,
+    )
+    .unwrap();
+    let pulse = pulse.to_field().unwrap();
+    let p = run(&target, &pulse, &energies, &MultichannelSettings::default());
+    assert!(p.group_delay.iter().any(|g| g.is_some()));
+}
+
+#[test]
+fn hole_densities_are_listed_only_for_saddles_that_contribute() {
+    // One rule for which saddles exist in every output (the Stokes rule of the orbit tables,
+    // physics notes §2.2): beyond a pair's cutoff the growing member has no hole density, and the
+    // densities are those of normalised amplitudes (populations in [0, 1], unit trace,
+    // Hermitian, |ρ_mn|² ≤ ρ_mm ρ_nn).
+    let field = field();
+    let target = load("demo-linear-triatomic.json").validate().unwrap();
+    let energies = orders(&field, (21..=41).map(f64::from));
+    let settings = MultichannelSettings {
+        group_delay_step: None,
+        ..MultichannelSettings::default()
+    };
+    let stage = trajectory_stage(&field, &target, &energies, &settings).unwrap();
+    let s = assemble(&field, &target, &stage, true, &|_, _| {}).unwrap();
+    let table = &stage.pairs[0].table;
+    let mut excluded = 0;
+    for (f, h) in s.holes.iter().enumerate() {
+        for (k, p) in h.points.iter().enumerate() {
+            let physical = table.is_physical(f, stage.central(k));
+            if !physical {
+                excluded += 1;
+                assert!(
+                    p.is_none(),
+                    "{} H{}: growing saddle listed",
+                    h.label,
+                    21 + k
+                );
+            }
+            if let Some(p) = p {
+                let n = p.rho.nrows();
+                let trace: f64 = (0..n).map(|i| p.rho[(i, i)].re).sum();
+                assert!((trace - 1.0).abs() < 1e-12);
+                for i in 0..n {
+                    assert!((-1e-12..=1.0 + 1e-12).contains(&p.rho[(i, i)].re));
+                    for j in 0..n {
+                        assert!((p.rho[(i, j)] - p.rho[(j, i)].conj()).norm() < 1e-12);
+                        assert!(
+                            p.rho[(i, j)].norm_sqr() <= p.rho[(i, i)].re * p.rho[(j, j)].re + 1e-12
+                        );
+                    }
+                }
+            }
+        }
+    }
+    assert!(excluded > 0, "the grid must reach past the cutoff");
+}

@@ -275,3 +275,47 @@ fn second_half_cycle_is_the_first_shifted_by_half_a_period() {
         }
     }
 }
+
+#[test]
+fn structured_saddles_tend_to_the_plain_ones_for_flat_structure() {
+    // Limit check (derived in orbits::equations): for exponents → ∞ (q = 1/4α → 0) and centres
+    // → the origin, the saddle equations with Gaussian structure in the phase reduce to the plain
+    // ones; the shift of the saddles is linear in q and C.
+    let field = LaserSpec::monochromatic(2e14, 800.0).to_field().unwrap();
+    let w = field.omega();
+    let energies: Vec<f64> = (21..=29).step_by(2).map(|q| f64::from(q) * w).collect();
+    let settings = OrbitSettings::default();
+    let plain = solve_orbits(&field, ChannelPair::new(0.5, 0.55), &energies, &settings).unwrap();
+    let mut previous = f64::INFINITY;
+    for scale in [1e-2, 1e-3, 1e-4] {
+        let term = GaussianTerm {
+            quarter: scale,
+            centre: Vector3::new(0.2, -0.1, 0.5) * scale,
+        };
+        let pair = ChannelPair {
+            structure: PhaseStructure {
+                ion: Some(term),
+                rec: Some(term),
+            },
+            ..ChannelPair::new(0.5, 0.55)
+        };
+        let structured = solve_orbits(&field, pair, &energies, &settings).unwrap();
+        let mut shift: f64 = 0.0;
+        for (a, b) in plain.families.iter().zip(&structured.families) {
+            for (p, q) in a.points.iter().zip(&b.points) {
+                let (p, q) = (p.saddle().unwrap(), q.saddle().unwrap());
+                shift = shift
+                    .max((p.t_ret - q.t_ret).norm())
+                    .max((p.t_ion - q.t_ion).norm())
+                    .max((p.action - q.action).norm());
+            }
+        }
+        assert!(shift > 0.0, "the structure must move the saddles");
+        if previous.is_finite() {
+            let ratio = previous / shift;
+            assert!((8.0..12.5).contains(&ratio), "scale {scale}: ratio {ratio}");
+        }
+        previous = shift;
+    }
+    assert!(previous < 1e-2);
+}

@@ -665,7 +665,7 @@ pub fn spectrum(args: &SpectrumArgs, quiet: bool) -> Result<()> {
             "intensity": "|D|^2 = sum over x,y,z of |D_k|^2, D(Ω) = ∫ <r>(t) e^{iΩt} dt over one period (periodic field) or the pulse, coherent over orientations, a.u.",
             "power": "Ω^4 |D|^2, proportional to the emitted power (dipole form), arbitrary units",
             "phase_rad": "arg of the dipole component along the driving polarization axis",
-            "group_delay_fs": "dφ/dΩ by central difference over Ω ± 0.001ω",
+            "group_delay_fs": "dφ/dΩ by central difference over Ω ± 0.001ω; for a periodic field only per family (*_group_delay_fs of a family is one half cycle's emission time; a sum over both half cycles has none: its dφ/dΩ is a half cycle's plus T/4), for pulses also for pairs and the total",
             "parallel/perpendicular": "dipole components along and across the driving polarization (in its plane)",
             "ellipticity/polarization_angle_deg": "polarization state of the harmonic from the Stokes parameters of (parallel, perpendicular)",
             "incoherent_pair_sum": "sum over channel pairs of |D_pair|^2: compare with intensity to see the channel interference",

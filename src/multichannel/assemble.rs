@@ -28,7 +28,8 @@ pub struct PairSpectrum {
     pub rec: usize,
     /// Orientation-averaged dipole of the pair per energy.
     pub dipole: Vec<CVec3>,
-    /// `dφ/dΩ` of the pair's contribution (a.u.).
+    /// `dφ/dΩ` of the pair's contribution (a.u.); None for periodic fields, where a sum over
+    /// both half cycles has no emission time (its dφ/dΩ is a half cycle's plus T/4).
     pub group_delay: Vec<Option<f64>>,
     /// Family contributions (orientation averaged).
     pub families: Vec<Contribution>,
@@ -75,7 +76,8 @@ pub struct MultichannelSpectrum {
     pub labels: Vec<String>,
     /// Total dipole per energy.
     pub total: Vec<CVec3>,
-    /// `dφ/dΩ` of the total (a.u.).
+    /// `dφ/dΩ` of the total (a.u.); None for periodic fields (see [`PairSpectrum::group_delay`];
+    /// the families carry their own).
     pub group_delay: Vec<Option<f64>>,
     /// Whether every saddle of every pair converged at the energy.
     pub complete: Vec<bool>,
@@ -333,7 +335,14 @@ fn finish(plan: &Plan<'_>, mut acc: Accumulator, count: usize) -> Result<Multich
         .map(|d| project(&axis, d).norm())
         .fold(0.0, f64::max);
     let floor = NEGLIGIBLE * largest;
-    let delay = |v: &[CVec3], k: usize| -> Option<f64> {
+    // For a periodic field the lines sum both half cycles, D = D₁(1 ± e^{iΩT/2}), so dφ/dΩ of a
+    // sum over half cycles is a half cycle's group delay plus T/4 and no emission time: only
+    // the families (one half cycle each) get group delays there (pulses: every sum).
+    let periodic = matches!(
+        field.structure(),
+        crate::field::TimeStructure::Periodic { .. }
+    );
+    let family_delay = |v: &[CVec3], k: usize| -> Option<f64> {
         let d = stage.delta?;
         let i = central(k);
         crate::spectrum::phase_derivative(
@@ -344,6 +353,8 @@ fn finish(plan: &Plan<'_>, mut acc: Accumulator, count: usize) -> Result<Multich
             floor,
         )
     };
+    let delay =
+        |v: &[CVec3], k: usize| -> Option<f64> { if periodic { None } else { family_delay(v, k) } };
     let mut complete = vec![true; n];
     let mut pairs = Vec::with_capacity(stage.pairs.len());
     for (p, pair) in stage.pairs.iter().enumerate() {
@@ -371,7 +382,7 @@ fn finish(plan: &Plan<'_>, mut acc: Accumulator, count: usize) -> Result<Multich
                 kind: (0..n)
                     .map(|k| pair.kernels.values[f][central(k)].kind)
                     .collect(),
-                group_delay: (0..n).map(|k| delay(values, k)).collect(),
+                group_delay: (0..n).map(|k| family_delay(values, k)).collect(),
                 emission_time: (0..n)
                     .map(|k| family.points[central(k)].saddle().map(|s| s.t_ret.re))
                     .collect(),
