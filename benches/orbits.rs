@@ -1,4 +1,5 @@
-//! Speed of the trajectory stage and of a whole single-channel spectrum.
+//! Speed of the trajectory stage and of a whole one-channel spectrum (through the
+//! multichannel path, with the ionization Gaussian in the phase or in the prefactor).
 //!
 //! `scripts/bench_figures.py` turns the timings into saddle solutions per second.
 
@@ -8,9 +9,10 @@ use criterion::{Criterion, criterion_group, criterion_main};
 use holecast::dipole::SaddleSum;
 use holecast::ionization::IonizationModel;
 use holecast::laser::LaserSpec;
+use holecast::multichannel::{MultichannelSettings, StructurePlacement, spectrum};
 use holecast::orbits::{ChannelPair, DiscoverySettings, OrbitSettings, families, solve_orbits};
 use holecast::recombination::RecombinationModel;
-use holecast::spectrum::{ChannelModels, SpectrumSettings, single_channel};
+use holecast::target::Target;
 
 /// Hydrogen, 800 nm, 2e14 W/cm²: plateau from H11 to H41 (cutoff H35.8).
 fn setup() -> (holecast::field::Field, f64) {
@@ -40,27 +42,37 @@ fn benches(c: &mut Criterion) {
         b.iter(|| black_box(families::discover(&field, &DiscoverySettings::default()).len()))
     });
     let plateau: Vec<f64> = (0..=300).map(|k| (11.0 + 0.1 * k as f64) * w).collect();
-    let models = ChannelModels {
-        ip: 0.5,
-        ionization: IonizationModel::Gaussian { exponent: 0.27095 },
-        recombination: RecombinationModel::Hydrogenic { ip: 0.5 },
-    };
-    for (name, delay) in [("with_group_delay", Some(1e-3)), ("no_group_delay", None)] {
-        let s = SpectrumSettings {
-            sum: SaddleSum::Uniform,
-            group_delay_step: delay,
-            ..SpectrumSettings::default()
-        };
-        c.bench_function(&format!("spectrum/plateau_301_energies_{name}"), |b| {
-            b.iter(|| {
-                black_box(
-                    single_channel(&field, &models, black_box(&plateau), &s)
-                        .unwrap()
-                        .total
-                        .len(),
-                )
-            })
-        });
+    let target = Target::one_channel(
+        0.5,
+        IonizationModel::Gaussian { exponent: 0.27095 },
+        RecombinationModel::Hydrogenic { ip: 0.5 },
+    )
+    .unwrap();
+    for (placement, tag) in [
+        (StructurePlacement::Prefactor, "prefactor"),
+        (StructurePlacement::Phase, "phase"),
+    ] {
+        for (name, delay) in [("with_group_delay", Some(1e-3)), ("no_group_delay", None)] {
+            let s = MultichannelSettings {
+                sum: SaddleSum::Uniform,
+                group_delay_step: delay,
+                ionization_structure: placement,
+                ..MultichannelSettings::default()
+            };
+            c.bench_function(
+                &format!("spectrum/plateau_301_energies_{name}_structure_{tag}"),
+                |b| {
+                    b.iter(|| {
+                        black_box(
+                            spectrum(&field, &target, black_box(&plateau), &s)
+                                .unwrap()
+                                .total
+                                .len(),
+                        )
+                    })
+                },
+            );
+        }
     }
 }
 

@@ -1,32 +1,34 @@
-//! Single-channel harmonic spectrum of an argon-like atom, uniform against plain saddle sums.
+//! One-channel harmonic spectrum of an argon-like atom, uniform against plain saddle sums
+//! (a one-channel target through the same multichannel path as every molecule).
 //!
 //! Run with `cargo run --release --example atom_spectrum`.
 
 use holecast::dipole::SaddleSum;
 use holecast::ionization::IonizationModel;
 use holecast::laser::LaserSpec;
+use holecast::multichannel::{MultichannelSettings, spectrum};
 use holecast::recombination::RecombinationModel;
-use holecast::spectrum::{ChannelModels, SpectrumSettings, single_channel};
+use holecast::target::Target;
 use holecast::units;
 
 fn main() -> Result<(), Box<dyn std::error::Error>> {
     let field = LaserSpec::monochromatic(1.5e14, 800.0).to_field()?;
     let w = field.omega();
     let ip = units::ev_to_au(15.7596119);
-    let models = ChannelModels {
+    let target = Target::one_channel(
         ip,
-        ionization: IonizationModel::Gaussian {
+        IonizationModel::Gaussian {
             exponent: 0.27095 * 2.0 * ip,
         },
-        recombination: RecombinationModel::Hydrogenic { ip },
-    };
+        RecombinationModel::Hydrogenic { ip },
+    )?;
     let energies: Vec<f64> = (11..=37).step_by(2).map(|q| f64::from(q) * w).collect();
     let run = |sum| {
-        let settings = SpectrumSettings {
+        let settings = MultichannelSettings {
             sum,
-            ..SpectrumSettings::default()
+            ..MultichannelSettings::default()
         };
-        single_channel(&field, &models, &energies, &settings)
+        spectrum(&field, &target, &energies, &settings)
     };
     let (uniform, plain) = (run(SaddleSum::Uniform)?, run(SaddleSum::Plain)?);
     println!("order  power (uniform)   power (plain)   group delay (fs)");

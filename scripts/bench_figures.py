@@ -47,8 +47,11 @@ def main():
     print("\nholecast benchmark figures (mean ± standard error of criterion's estimate)\n")
     show("trajectory stage: 3001 energies × 4 families", "orbits/continuation_12004_saddles", 12004, "saddle solutions")
     show("family discovery (classical seeds, once per field)", "orbits/family_discovery")
-    show("plateau spectrum H11–H41, Δq = 0.1, with group delays", "spectrum/plateau_301_energies_with_group_delay")
-    show("plateau spectrum H11–H41, Δq = 0.1, no group delays", "spectrum/plateau_301_energies_no_group_delay")
+    for tag in ("prefactor", "phase"):
+        show(f"plateau spectrum H11–H41, Δq = 0.1, with group delays, structure in {tag}",
+             f"spectrum/plateau_301_energies_with_group_delay_structure_{tag}")
+        show(f"plateau spectrum H11–H41, Δq = 0.1, no group delays, structure in {tag}",
+             f"spectrum/plateau_301_energies_no_group_delay_structure_{tag}")
     print()
     print("three channels (9 pairs), H9–H34 at Δq = 0.1, 192 orientations, 2 threads available:")
     for name in ["with_group_delay", "no_group_delay"]:

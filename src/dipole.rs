@@ -88,7 +88,8 @@ pub struct Kernels {
 
 fn spreading_and_gauss(s: &Saddle, epsilon: f64) -> Complex64 {
     let two_pi = 2.0 * std::f64::consts::PI;
-    let w = two_pi / (Complex64::new(epsilon, 0.0) + Complex64::i() * s.tau);
+    // With Gaussian structure in the phase the momentum integral's width adds to ε + iτ.
+    let w = two_pi / (Complex64::new(epsilon + s.width, 0.0) + Complex64::i() * s.tau);
     let spreading = w * w.sqrt();
     Complex64::new(0.0, -1.0) * spreading * (two_pi / s.hessian_root)
 }

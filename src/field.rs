@@ -494,6 +494,33 @@ impl Field {
         self.at(t).e
     }
 
+    /// Electric field and its time derivative `(E(t), dE/dt)` at complex time, without the
+    /// other quantities of [`Field::at`] (cheaper where only the field is needed).
+    #[inline]
+    pub fn electric_and_rate(&self, t: Complex64) -> (CVec3, CVec3) {
+        let zero = Complex64::new(0.0, 0.0);
+        let (mut e, mut de) = ([zero; 3], [zero; 3]);
+        for m in &self.modes {
+            let nu = m.frequency;
+            let (s, c) = (nu * t.re).sin_cos();
+            let g = (nu * t.im).exp();
+            let xp = Complex64::new(g * c, -g * s);
+            let xm = Complex64::new(c / g, s / g);
+            for &k in &self.active {
+                let p = m.amplitude[k] * xp;
+                let q = m.amplitude[k].conj() * xm;
+                // E = −dA/dt = iν (p − q);  dE/dt = iν (−iν p − iν q) = ν² (p + q).
+                let d = p - q;
+                e[k] += Complex64::new(-nu * d.im, nu * d.re);
+                de[k] += (p + q) * (nu * nu);
+            }
+        }
+        (
+            CVec3::new(e[0], e[1], e[2]),
+            CVec3::new(de[0], de[1], de[2]),
+        )
+    }
+
     /// Real vector potential, electric field and `∫A` at real time `t`.
     pub fn real_at(&self, t: f64) -> (Vector3<f64>, Vector3<f64>, Vector3<f64>) {
         let p = self.at(Complex64::new(t, 0.0));

@@ -90,6 +90,7 @@
 //! # Ok::<(), holecast::hole::HoleError>(())
 //! ```
 
+mod complex;
 mod error;
 mod grid;
 mod ion;
@@ -98,6 +99,7 @@ mod propagator;
 mod samples;
 mod small;
 
+pub use complex::{COMPLEX_STEP_PHASE, ComplexHole, HoleContour, HoleTrack};
 pub use error::HoleError;
 pub use grid::GridTime;
 pub use ion::{HERMITICITY_TOLERANCE, IonModel, MAX_CHANNELS};

@@ -10,6 +10,7 @@ pub mod field;
 pub mod hole;
 pub mod ionization;
 pub mod laser;
+pub mod momentum;
 pub mod multichannel;
 pub mod orbital;
 pub mod orbits;

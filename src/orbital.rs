@@ -365,8 +365,8 @@ impl Primitive {
             )
     }
 
-    fn shell(&self) -> (Shell, Member) {
-        let member = Member {
+    fn shell(&self) -> (Shell, ShellTerm) {
+        let member = ShellTerm {
             powers: self.powers,
             weight: Complex64::new(self.normalisation, 0.0),
         };
@@ -497,9 +497,23 @@ struct Shell {
 /// One Cartesian component of a shell with its weight: the coefficient of the unnormalised
 /// primitive `(r−A)^p e^{−α|r−A|²}` in the normalised orbital.
 #[derive(Debug, Clone, Copy, PartialEq)]
-struct Member {
-    powers: [u8; 3],
-    weight: Complex64,
+pub struct ShellTerm {
+    /// Cartesian powers `[a, b, c]` of `(x−Aₓ)^a (y−A_y)^b (z−A_z)^c`.
+    pub powers: [u8; 3],
+    /// Coefficient of the unnormalised primitive in the normalised orbital.
+    pub weight: Complex64,
+}
+
+/// The primitives of an orbital that share one centre and one exponent (a view into
+/// [`Orbital`]): `φ_shell(r) = Σ_t w_t (x−Aₓ)^a (y−A_y)^b (z−A_z)^c e^{−α|r−A|²}`.
+#[derive(Debug, Clone, Copy)]
+pub struct ShellView<'a> {
+    /// Centre `A` (bohr, molecular frame).
+    pub centre: Vector3<f64>,
+    /// Exponent `α` (bohr⁻²).
+    pub exponent: f64,
+    /// The Cartesian terms with their weights.
+    pub terms: &'a [ShellTerm],
 }
 
 impl Shell {
@@ -524,7 +538,7 @@ impl Shell {
     #[inline(always)]
     fn project<const DIPOLE: bool>(
         &self,
-        members: &[Member],
+        members: &[ShellTerm],
         k: &Vector3<Complex64>,
     ) -> (Complex64, Vector3<Complex64>) {
         let extra = usize::from(DIPOLE);
@@ -616,7 +630,7 @@ pub trait PlaneWaveProjection {
 pub struct Orbital {
     name: String,
     shells: Vec<Shell>,
-    members: Vec<Member>,
+    members: Vec<ShellTerm>,
     norm_before_normalisation: f64,
 }
 
@@ -676,6 +690,16 @@ impl Orbital {
     /// normalised), before the orbital was normalised.
     pub fn norm_before_normalisation(&self) -> f64 {
         self.norm_before_normalisation
+    }
+
+    /// The shells of the orbital: primitives grouped by (centre, exponent), in order of first
+    /// appearance in the description. `φ = Σ_shells φ_shell` exactly.
+    pub fn shells(&self) -> impl Iterator<Item = ShellView<'_>> {
+        self.shells.iter().map(|s| ShellView {
+            centre: s.centre,
+            exponent: s.exponent,
+            terms: &self.members[s.members.clone()],
+        })
     }
 
     /// Number of distinct primitives after merging equal ones.
@@ -836,8 +860,8 @@ fn check_norm_squared(item: &str, norm_squared: f64, scale: f64) -> Result<(), O
 
 /// Groups primitives by exact (centre, exponent), in order of first appearance, merging equal
 /// powers and dropping members whose merged weight is exactly zero.
-fn group_into_shells(primitives: &[WeightedPrimitive]) -> (Vec<Shell>, Vec<Member>) {
-    let mut groups: Vec<(Vector3<f64>, f64, Vec<Member>)> = Vec::new();
+fn group_into_shells(primitives: &[WeightedPrimitive]) -> (Vec<Shell>, Vec<ShellTerm>) {
+    let mut groups: Vec<(Vector3<f64>, f64, Vec<ShellTerm>)> = Vec::new();
     for p in primitives {
         let position = groups
             .iter()
@@ -852,7 +876,7 @@ fn group_into_shells(primitives: &[WeightedPrimitive]) -> (Vec<Shell>, Vec<Membe
         let members = &mut groups[index].2;
         match members.iter_mut().find(|m| m.powers == p.powers) {
             Some(m) => m.weight += p.weight,
-            None => members.push(Member {
+            None => members.push(ShellTerm {
                 powers: p.powers,
                 weight: p.weight,
             }),
@@ -891,7 +915,7 @@ fn table_entry(tables: &[[[f64; 5]; 5]; 3], pa: [u8; 3], pb: [u8; 3]) -> f64 {
 fn checked_norm_squared(
     item: &str,
     shells: &[Shell],
-    members: &[Member],
+    members: &[ShellTerm],
 ) -> Result<f64, OrbitalError> {
     let mut norm_squared = 0.0;
     let mut scale = 0.0;

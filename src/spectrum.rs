@@ -1,12 +1,14 @@
-//! Harmonic spectra of one channel: dipole, power, phase, emission times and group delays,
-//! resolved by quantum-orbit family.
+//! Spectral quantities shared by every dipole path: family contributions, harmonic phases and
+//! group delays.
 //!
 //! For a periodic field the saddles of one full period (every crest, so both half cycles of a
 //! linear field) are summed; at `Ω = qω` this is the amplitude of harmonic line `q` per cycle,
 //! and between lines it is the single-cycle transform (DESIGN §4.8). For a pulse every crest
-//! above the discovery threshold is summed, giving a continuous `D(Ω)`.
+//! above the discovery threshold is summed, giving a continuous `D(Ω)`. The dipole itself is
+//! assembled by [`crate::multichannel`] (one channel is a one-channel target,
+//! [`crate::target::Target::one_channel`]).
 //!
-//! Per energy the spectrum reports `|D|²`, the emitted power `Ω⁴|D|²` (dipole form, arbitrary
+//! Per energy a spectrum reports `|D|²`, the emitted power `Ω⁴|D|²` (dipole form, arbitrary
 //! overall constant), the harmonic phase `arg(ê·D)` of the component along the driving
 //! polarization `ê`, and the group delay `dφ/dΩ` computed by a central difference over
 //! `Ω ± δ` with freshly solved saddles at both ends. For one saddle the stationary-phase identity
@@ -16,49 +18,10 @@
 use nalgebra::Vector3;
 use num_complex::Complex64;
 
-use crate::dipole::{KernelKind, SaddleSum, kernels};
+use crate::dipole::KernelKind;
 use crate::error::{Error, Result};
-use crate::field::{CVec3, Field};
-use crate::ionization::IonizationModel;
-use crate::orbits::{
-    ChannelPair, FamilyLabel, OrbitPoint, OrbitSettings, OrbitTable, solve_orbits,
-};
-use crate::recombination::RecombinationModel;
-
-/// Structure models of one channel.
-#[derive(Clone, Debug)]
-pub struct ChannelModels {
-    /// Ionization potential (a.u.).
-    pub ip: f64,
-    /// Ionization model.
-    pub ionization: IonizationModel,
-    /// Recombination model.
-    pub recombination: RecombinationModel,
-}
-
-/// Settings of a spectrum calculation.
-#[derive(Clone, Copy, Debug, PartialEq)]
-pub struct SpectrumSettings {
-    /// Uniform or plain saddle sum.
-    pub sum: SaddleSum,
-    /// Regulator ε of the spreading factor (0 for saddle-point work).
-    pub epsilon: f64,
-    /// Trajectory-stage settings.
-    pub orbits: OrbitSettings,
-    /// Half-width δ of the group-delay difference, as a fraction of ω; `None` skips group delays.
-    pub group_delay_step: Option<f64>,
-}
-
-impl Default for SpectrumSettings {
-    fn default() -> Self {
-        SpectrumSettings {
-            sum: SaddleSum::Uniform,
-            epsilon: 0.0,
-            orbits: OrbitSettings::default(),
-            group_delay_step: Some(1e-3),
-        }
-    }
-}
+use crate::field::CVec3;
+use crate::orbits::FamilyLabel;
 
 /// The contribution of one quantum-orbit family.
 #[derive(Clone, Debug)]
@@ -75,53 +38,6 @@ pub struct Contribution {
     pub group_delay: Vec<Option<f64>>,
     /// `Re t_r` of the saddle (a.u.), where solved.
     pub emission_time: Vec<Option<f64>>,
-}
-
-/// A harmonic spectrum with its family contributions.
-#[derive(Clone, Debug)]
-pub struct Spectrum {
-    /// Reference angular frequency ω (a.u.): order = Ω/ω.
-    pub omega: f64,
-    /// Photon energies Ω (a.u.).
-    pub energies: Vec<f64>,
-    /// Driving polarization axis ê (phase reference).
-    pub axis: Vector3<f64>,
-    /// How saddles were summed.
-    pub sum: SaddleSum,
-    /// Total dipole `D(Ω)` per energy.
-    pub total: Vec<CVec3>,
-    /// `dφ/dΩ` of the total (a.u.).
-    pub group_delay: Vec<Option<f64>>,
-    /// Whether every family contributed at the energy (no failed saddle).
-    pub complete: Vec<bool>,
-    /// Family contributions.
-    pub contributions: Vec<Contribution>,
-    /// The trajectory stage on the energy grid (for orbit tables and diagnostics).
-    pub orbits: OrbitTable,
-}
-
-impl Spectrum {
-    /// `|D|²` at energy index `k`.
-    pub fn intensity(&self, k: usize) -> f64 {
-        self.total[k].iter().map(|c| c.norm_sqr()).sum()
-    }
-
-    /// Largest `|D|²` over the energies.
-    pub fn intensity_max(&self) -> f64 {
-        (0..self.energies.len())
-            .map(|k| self.intensity(k))
-            .fold(0.0, f64::max)
-    }
-
-    /// Emitted power `Ω⁴|D|²` at energy index `k` (arbitrary units).
-    pub fn power(&self, k: usize) -> f64 {
-        self.energies[k].powi(4) * self.intensity(k)
-    }
-
-    /// Harmonic phases `arg(ê·D)` (rad) at every energy (see [`phases`]).
-    pub fn phases(&self) -> Vec<Option<f64>> {
-        phases(&self.total, &self.axis)
-    }
 }
 
 /// Harmonic phases `arg(ê·D)` (rad) of a dipole series; `None` where `|ê·D|` is below
@@ -186,88 +102,4 @@ pub fn phase_derivative(
         return None;
     }
     Some((hi / lo).arg() / (2.0 * delta))
-}
-
-/// The single-channel spectrum at photon energies `energies` (a.u.).
-pub fn single_channel(
-    field: &Field,
-    channel: &ChannelModels,
-    energies: &[f64],
-    settings: &SpectrumSettings,
-) -> Result<Spectrum> {
-    channel.ionization.validate("ionization")?;
-    channel.recombination.validate("recombination")?;
-    let omega = field.omega();
-    let (stride, _, grid) = group_delay_grid(energies, settings.group_delay_step, omega)?;
-    let offset = stride / 2;
-    let table = solve_orbits(
-        field,
-        ChannelPair::single(channel.ip),
-        &grid,
-        &settings.orbits,
-    )?;
-    let kern = kernels(&table, settings.sum, settings.epsilon);
-    let axis = field.axis();
-    let n = energies.len();
-    let mut total = vec![CVec3::zeros(); grid.len()];
-    let mut complete = vec![true; n];
-    let mut contributions = Vec::with_capacity(table.families.len());
-    for (f, family) in table.families.iter().enumerate() {
-        let mut dipole = vec![None; grid.len()];
-        for (i, p) in family.points.iter().enumerate() {
-            let kv = kern.values[f][i];
-            if let OrbitPoint::Solved(s) = p {
-                let pre = channel.recombination.vector(&s.v_ret, table.energies[i])
-                    * channel.ionization.factor(&s.v_ion, &s.e_ion, &s.e_exit);
-                let d = pre * kv.value;
-                total[i] += d;
-                dipole[i] = Some(d);
-            } else if i % stride == offset && p.is_failure() {
-                complete[i / stride] = false;
-            }
-        }
-        let central = |i: usize| i * stride + offset;
-        let group_delay = (0..n)
-            .map(|k| {
-                let step = settings.group_delay_step?;
-                let (lo, hi) = (dipole[central(k) - 1]?, dipole[central(k) + 1]?);
-                let (lo, hi) = (project(&axis, &lo), project(&axis, &hi));
-                phase_derivative(lo, hi, lo, step * omega, 0.0)
-            })
-            .collect();
-        contributions.push(Contribution {
-            label: family.label,
-            half_cycle: family.half_cycle,
-            dipole: (0..n).map(|k| dipole[central(k)]).collect(),
-            kind: (0..n).map(|k| kern.values[f][central(k)].kind).collect(),
-            group_delay,
-            emission_time: (0..n)
-                .map(|k| family.points[central(k)].saddle().map(|s| s.t_ret.re))
-                .collect(),
-        });
-    }
-    let largest = total
-        .iter()
-        .map(|d| project(&axis, d).norm())
-        .fold(0.0, f64::max);
-    let group_delay = (0..n)
-        .map(|k| {
-            let step = settings.group_delay_step?;
-            let i = k * stride + offset;
-            let (lo, hi) = (project(&axis, &total[i - 1]), project(&axis, &total[i + 1]));
-            let centre = project(&axis, &total[i]);
-            phase_derivative(lo, hi, centre, step * omega, NEGLIGIBLE * largest)
-        })
-        .collect();
-    Ok(Spectrum {
-        omega,
-        energies: energies.to_vec(),
-        axis,
-        sum: settings.sum,
-        total: (0..n).map(|k| total[k * stride + offset]).collect(),
-        group_delay,
-        complete,
-        contributions,
-        orbits: table.subsample(stride, offset),
-    })
 }

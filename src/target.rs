@@ -752,6 +752,43 @@ impl Target {
         })
     }
 
+    /// A one-channel target with the given models (ionization potential `ip` in a.u.), fixed
+    /// in the lab frame (one orientation, Euler angles 0): an atom, or a molecule held fixed.
+    /// This is how the library computes the spectrum of one channel: through the same
+    /// multichannel path as every molecule ([`crate::multichannel::spectrum`]).
+    ///
+    /// # Errors
+    /// An ionization potential that is not positive and finite, or invalid model parameters
+    /// (named as `ionization` / `recombination`).
+    pub fn one_channel(
+        ip: f64,
+        ionization: IonizationModel,
+        recombination: RecombinationModel,
+    ) -> Result<Target> {
+        require_positive("ionization potential (a.u.)", ip)?;
+        ionization.validate("ionization")?;
+        recombination.validate("recombination")?;
+        let zero = DMatrix::from_element(1, 1, Complex64::new(0.0, 0.0));
+        let ion = IonModel::new(vec![ip], zero.clone(), [zero.clone(), zero.clone(), zero])
+            .map_err(|e| Error::invalid("ionization potential (a.u.)", ip, &e.to_string()))?;
+        Ok(Target {
+            name: "one channel".into(),
+            description: "one-channel target built in code".into(),
+            invented: true,
+            source: String::new(),
+            atoms: Vec::new(),
+            channels: vec![Channel {
+                label: "X".into(),
+                ip,
+                ionization,
+                recombination,
+            }],
+            ion,
+            alignment: AlignmentDistribution::isotropic(),
+            orientations: OrientationGridSpec::Fixed([0.0; 3]),
+        })
+    }
+
     /// Whether every channel's models are independent of orientation and there is at most one
     /// atom: orientation averaging then changes nothing.
     pub fn is_isotropic(&self) -> bool {

@@ -41,28 +41,29 @@ fn quadrature_method_writes_the_same_rows_and_records_itself() {
     let dir = tempfile::tempdir().unwrap();
     let q = spectrum(&dir.path().join("q"), "quadrature");
     let s = spectrum(&dir.path().join("s"), "saddle");
-    assert_eq!(q["method"], "quadrature");
-    assert_eq!(s["method"], "saddle");
-    assert!(q["quadrature"]["steps_per_cycle"].as_u64().unwrap() >= 16);
+    assert_eq!(q["approximations"]["method"], "quadrature");
+    assert_eq!(s["approximations"]["method"], "saddle");
+    assert_eq!(s["approximations"]["hole_times"], "complex");
+    assert!(q["approximations"]["steps_per_cycle"].as_u64().unwrap() >= 16);
     let (qp, sp) = (
         q["points"].as_array().unwrap(),
         s["points"].as_array().unwrap(),
     );
     assert_eq!(qp.len(), sp.len());
-    // Same physics to the accuracy of the saddle-point approximation for hydrogen's STO-1G
-    // ionization prefactor (docs/validation.md, 800 nm, 2×10¹⁴: median |Δlog₁₀ I| 0.31 decades,
-    // worst 0.51 decades at the interference minimum H17); here only the plumbing is checked:
-    // every line within a decade, the median within 0.4 decades.
+    // Same physics to the accuracy of the saddle-point approximation (docs/validation.md,
+    // hydrogen at 800 nm, 2×10¹⁴ W/cm²: single orbits within a few per cent, but short–long
+    // interference minima such as H17 amplify that to more than a decade); here only the
+    // plumbing is checked: every line within 1.5 decades, the median within 0.3 decades.
     let mut deltas = Vec::new();
     for (a, b) in qp.iter().zip(sp) {
         assert_eq!(a["order"], b["order"]);
         let r = a["intensity"].as_f64().unwrap() / b["intensity"].as_f64().unwrap();
-        assert!(r.log10().abs() < 1.0, "order {}: {r}", a["order"]);
+        assert!(r.log10().abs() < 1.5, "order {}: {r}", a["order"]);
         deltas.push(r.log10().abs());
     }
     deltas.sort_by(f64::total_cmp);
     assert!(
-        deltas[deltas.len() / 2] < 0.4,
+        deltas[deltas.len() / 2] < 0.3,
         "median {}",
         deltas[deltas.len() / 2]
     );

@@ -4,16 +4,22 @@
 use holecast::field::CVec3;
 use holecast::ionization::IonizationModel;
 use holecast::laser::LaserSpec;
+use holecast::multichannel::{MultichannelSettings, MultichannelSpectrum, spectrum};
 use holecast::orbits::{ChannelPair, OrbitSettings, solve_orbits};
 use holecast::recombination::RecombinationModel;
-use holecast::spectrum::{ChannelModels, SpectrumSettings, single_channel};
+use holecast::target::Target;
 
-fn atom(ip: f64) -> ChannelModels {
-    ChannelModels {
+fn atom(ip: f64) -> Target {
+    Target::one_channel(
         ip,
-        ionization: IonizationModel::Gaussian { exponent: 0.5 },
-        recombination: RecombinationModel::Gaussian { exponent: 0.5 },
-    }
+        IonizationModel::Gaussian { exponent: 0.5 },
+        RecombinationModel::Gaussian { exponent: 0.5 },
+    )
+    .unwrap()
+}
+
+fn run(field: &holecast::field::Field, target: &Target, energies: &[f64]) -> MultichannelSpectrum {
+    spectrum(field, target, energies, &MultichannelSettings::default()).unwrap()
 }
 
 fn laser(text: &str) -> LaserSpec {
@@ -43,10 +49,10 @@ fn bicircular_field_selection_rules() {
     let w = field.omega();
     let orders: Vec<f64> = (13..=23).map(f64::from).collect();
     let energies: Vec<f64> = orders.iter().map(|q| q * w).collect();
-    let s = single_channel(&field, &atom(0.58), &energies, &SpectrumSettings::default()).unwrap();
+    let s = run(&field, &atom(0.58), &energies);
     assert!(s.complete.iter().all(|c| *c), "every orbit converged");
     assert_eq!(
-        s.contributions.len(),
+        s.pairs[0].families.len(),
         6,
         "short and long from each of the three lobes"
     );
@@ -85,19 +91,20 @@ fn pulse_sums_every_half_cycle_and_builds_odd_harmonics() {
     let w = field.omega();
     let orders: Vec<f64> = (0..=120).map(|k| 14.0 + 0.1 * f64::from(k)).collect();
     let energies: Vec<f64> = orders.iter().map(|q| q * w).collect();
-    let s = single_channel(&field, &atom(0.5), &energies, &SpectrumSettings::default()).unwrap();
+    let s = run(&field, &atom(0.5), &energies);
     assert!(s.complete.iter().all(|c| *c));
     let windows = field.birth_windows(0.3).len();
     assert!(
         windows >= 9,
         "{windows} half cycles above 30% of the peak field"
     );
-    assert_eq!(s.contributions.len(), 2 * windows);
+    assert_eq!(s.pairs[0].families.len(), 2 * windows);
     // Short-trajectory emission (summed over all half cycles) has a small intensity-dependent
     // phase, so it builds clean peaks spaced by two orders.
     let short: Vec<f64> = (0..orders.len())
         .map(|k| {
-            s.contributions
+            s.pairs[0]
+                .families
                 .iter()
                 .filter(|c| c.label.branch == holecast::orbits::Branch::Short)
                 .filter_map(|c| c.dipole[k])

@@ -3,7 +3,11 @@
 
 use holecast::field::{Colour, Envelope, Field, Polarization};
 use holecast::laser::LaserSpec;
-use holecast::orbits::{Branch, ChannelPair, OrbitPoint, OrbitSettings, evaluate, solve_orbits};
+use holecast::orbits::{
+    Branch, ChannelPair, GaussianTerm, OrbitPoint, OrbitSettings, PhaseStructure, evaluate,
+    solve_orbits,
+};
+use nalgebra::Vector3;
 use num_complex::Complex64;
 
 fn cos_field(f: f64, w: f64) -> Field {
@@ -65,10 +69,38 @@ fn hessian_matches_finite_differences_at_complex_times() {
         Envelope::Continuous,
     )
     .unwrap();
-    for field in [cos_field(1.0, 1.0), two] {
+    // With Gaussian structure in the phase (orbits::equations, derived there): the same checks
+    // for an ionization shell, a recombination shell and both, off the origin.
+    let ion = GaussianTerm {
+        quarter: 0.25 / 0.45,
+        centre: Vector3::new(0.3, -0.2, 1.1),
+    };
+    let rec = GaussianTerm {
+        quarter: 0.25 / 0.6,
+        centre: Vector3::new(-0.4, 0.1, -0.7),
+    };
+    let structures = [
+        PhaseStructure::default(),
+        PhaseStructure {
+            ion: Some(ion),
+            rec: None,
+        },
+        PhaseStructure {
+            ion: None,
+            rec: Some(rec),
+        },
+        PhaseStructure {
+            ion: Some(ion),
+            rec: Some(rec),
+        },
+    ];
+    for (field, structure) in [cos_field(1.0, 1.0), two]
+        .into_iter()
+        .flat_map(|f| structures.map(|s| (f.clone(), s)))
+    {
         let pair = ChannelPair {
-            ip_ion: 0.3,
-            ip_rec: 0.45,
+            structure,
+            ..ChannelPair::new(0.3, 0.45)
         };
         let omega = 1.7;
         let tr = Complex64::new(4.2, 0.05);

@@ -116,6 +116,50 @@ pub enum MethodArg {
     Quadrature,
 }
 
+/// Where the hole propagator of a saddle is evaluated.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum HoleTimesArg {
+    /// At the complex saddle times: the hole moves while the electron tunnels (default).
+    Complex,
+    /// At the real parts of the saddle times: the hole frozen under the barrier (the common
+    /// shortcut; for comparison).
+    Real,
+}
+
+/// Where a side's Gaussian structure factors go.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum StructureArg {
+    /// Into the phase of the saddle problem, shell by shell (Gaussian-type models only).
+    Phase,
+    /// In the prefactor, evaluated at the saddle.
+    Prefactor,
+}
+
+/// How the quadrature does the drift-momentum integral.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum MomentumArg {
+    /// Exactly, as a Gaussian moment, for Gaussian-type structure (default).
+    Exact,
+    /// Structure factors at the stationary momentum (the shortcut).
+    Stationary,
+}
+
+/// Approximations of the dipole (spectrum and holes).
+#[derive(Debug, Args)]
+pub struct ModelArgs {
+    /// Saddle method: where the hole propagator is evaluated.
+    #[arg(long, value_enum, default_value_t = HoleTimesArg::Complex)]
+    pub hole_times: HoleTimesArg,
+    /// Saddle method: Gaussian ionization structure (gaussian, orbital models) in the phase or
+    /// in the prefactor.
+    #[arg(long, value_enum, default_value_t = StructureArg::Phase)]
+    pub ionization_structure: StructureArg,
+    /// Saddle method: Gaussian recombination structure (gaussian, lcao models) in the phase or
+    /// in the prefactor.
+    #[arg(long, value_enum, default_value_t = StructureArg::Prefactor)]
+    pub recombination_structure: StructureArg,
+}
+
 /// `holecast check`.
 #[derive(Debug, Args)]
 pub struct CheckArgs {
@@ -168,6 +212,11 @@ pub struct SpectrumArgs {
     /// 0.03). Use a wide ramp between the short and long excursion times to keep short orbits.
     #[arg(long, value_name = "CYCLES", requires = "method")]
     pub window_fall_cycles: Option<f64>,
+    /// Quadrature only: how the drift-momentum integral is done.
+    #[arg(long, value_enum, default_value_t = MomentumArg::Exact)]
+    pub momentum_integral: MomentumArg,
+    #[command(flatten)]
+    pub model: ModelArgs,
     /// Output folder (created if missing).
     #[arg(long, value_name = "DIR")]
     pub out: PathBuf,
@@ -182,6 +231,8 @@ pub struct HolesArgs {
     pub laser: LaserArgs,
     #[command(flatten)]
     pub grid: GridArgs,
+    #[command(flatten)]
+    pub model: ModelArgs,
     /// Output folder (created if missing).
     #[arg(long, value_name = "DIR")]
     pub out: PathBuf,

@@ -13,7 +13,8 @@ use holecast::dipole::SaddleSum;
 use holecast::field::{Field, TimeStructure};
 use holecast::laser::LaserSpec;
 use holecast::multichannel::{
-    MultichannelSettings, MultichannelSpectrum, assemble, coupling_components, trajectory_stage,
+    HoleContour, MultichannelSettings, MultichannelSpectrum, StructurePlacement, assemble,
+    coupling_components, trajectory_stage,
 };
 use holecast::orbits::{ChannelPair, OrbitSettings};
 use holecast::report::{self, orbits::LabelledTable, svg::Marker};
@@ -21,8 +22,8 @@ use holecast::target::{Channel, OrientationGridSpec, Target};
 use holecast::units;
 
 use super::args::{
-    CheckArgs, Format, GridArgs, HolesArgs, LaserArgs, MethodArg, OrbitsArgs, SpectrumArgs, SumArg,
-    TargetArgs,
+    CheckArgs, Format, GridArgs, HoleTimesArg, HolesArgs, LaserArgs, MethodArg, ModelArgs,
+    MomentumArg, OrbitsArgs, SpectrumArgs, StructureArg, SumArg, TargetArgs,
 };
 use super::output::{write_all_atomic, write_atomic};
 use super::settings::{self, LoadedTarget};
@@ -449,8 +450,15 @@ fn quadrature_settings(
     method: MethodArg,
     excursion: Option<f64>,
     fall: Option<f64>,
+    momentum: MomentumArg,
 ) -> Option<holecast::quadrature::QuadratureSettings> {
-    let mut q = holecast::quadrature::QuadratureSettings::default();
+    let mut q = holecast::quadrature::QuadratureSettings {
+        momentum: match momentum {
+            MomentumArg::Exact => holecast::quadrature::MomentumIntegral::Exact,
+            MomentumArg::Stationary => holecast::quadrature::MomentumIntegral::Stationary,
+        },
+        ..holecast::quadrature::QuadratureSettings::default()
+    };
     if let Some(x) = excursion {
         q.excursion_cycles = x;
     }
@@ -460,11 +468,21 @@ fn quadrature_settings(
     (method == MethodArg::Quadrature).then_some(q)
 }
 
+/// The structure placement chosen on the command line.
+fn placement(arg: StructureArg) -> StructurePlacement {
+    match arg {
+        StructureArg::Phase => StructurePlacement::Phase,
+        StructureArg::Prefactor => StructurePlacement::Prefactor,
+    }
+}
+
+#[allow(clippy::too_many_arguments)]
 fn run(
     command: &str,
     target: &TargetArgs,
     laser: &LaserArgs,
     grid: &GridArgs,
+    model: &ModelArgs,
     sum: SumArg,
     quiet: bool,
     quadrature: Option<holecast::quadrature::QuadratureSettings>,
@@ -480,6 +498,12 @@ fn run(
             SumArg::Plain => SaddleSum::Plain,
         },
         orbits: orbit_settings,
+        hole_contour: match model.hole_times {
+            HoleTimesArg::Complex => HoleContour::Complex,
+            HoleTimesArg::Real => HoleContour::Real,
+        },
+        ionization_structure: placement(model.ionization_structure),
+        recombination_structure: placement(model.recombination_structure),
         ..MultichannelSettings::default()
     };
     let t = &target.target;
@@ -511,26 +535,38 @@ fn run(
     bar.finish_and_clear();
     let cutoff = r.cutoffs;
     let mut meta = metadata(command, &target, &laser, &field, &summaries);
-    match &quadrature {
-        None => {
-            meta.insert("method".into(), json!("saddle"));
-            meta.insert(
-                "saddle_sum".into(),
-                serde_json::to_value(settings.sum).unwrap_or(Value::Null),
-            );
-        }
+    let approximations = match &quadrature {
+        None => json!({
+            "method": "saddle",
+            "method_note": "saddle-point evaluation of the time integrals over complex quantum orbits (relative error of order ω/Up); plane-wave continuum (no Coulomb distortion); no ground-state depletion",
+            "saddle_sum": settings.sum,
+            "hole_times": settings.hole_contour,
+            "hole_times_note": match settings.hole_contour {
+                HoleContour::Complex => "hole propagator U_I(t_r, t_i) at the complex saddle times (the hole moves during tunnelling)",
+                HoleContour::Real => "hole propagator U_I(Re t_r, Re t_i): hole frozen under the barrier (shortcut)",
+            },
+            "ionization_structure": settings.ionization_structure,
+            "recombination_structure": settings.recombination_structure,
+            "structure_note": "phase: Gaussian and centre factors of gaussian/orbital/lcao models in the saddle equations, shell by shell, with the momentum integral exact; prefactor: structure factors evaluated at the saddle; other models always in the prefactor",
+            "accuracy": "measured against the quadrature in docs/validation.md",
+        }),
         Some(q) => {
-            meta.insert("method".into(), json!("quadrature"));
             let steps = q.steps_per_cycle.unwrap_or_else(|| {
                 holecast::quadrature::automatic_steps_per_cycle(&field, t, &energies)
             });
             let mut v = serde_json::to_value(q).unwrap_or(Value::Null);
             if let Some(o) = v.as_object_mut() {
                 o.insert("steps_per_cycle".into(), json!(steps));
+                o.insert("method".into(), json!("quadrature"));
+                o.insert(
+                    "method_note".into(),
+                    json!("time integrals done numerically on real times; hole propagated in real time inside the integral; momentum integral exact for Gaussian-type structure (momentum = exact), other models at the mean momentum; plane-wave continuum"),
+                );
             }
-            meta.insert("quadrature".into(), v);
+            v
         }
-    }
+    };
+    meta.insert("approximations".into(), approximations);
     meta.insert("orientations_summed".into(), json!(spectrum.orientations));
     Ok(Run {
         target,
@@ -605,13 +641,18 @@ fn summary_line(run: &Run) {
 
 /// `holecast spectrum`.
 pub fn spectrum(args: &SpectrumArgs, quiet: bool) -> Result<()> {
-    let quadrature =
-        quadrature_settings(args.method, args.excursion_cycles, args.window_fall_cycles);
+    let quadrature = quadrature_settings(
+        args.method,
+        args.excursion_cycles,
+        args.window_fall_cycles,
+        args.momentum_integral,
+    );
     let run = run(
         "spectrum",
         &args.target,
         &args.laser,
         &args.grid,
+        &args.model,
         args.sum,
         quiet,
         quadrature,
@@ -689,6 +730,7 @@ pub fn holes(args: &HolesArgs, quiet: bool) -> Result<()> {
         &args.target,
         &args.laser,
         &args.grid,
+        &args.model,
         SumArg::Uniform,
         quiet,
         None,

@@ -212,6 +212,33 @@ impl HolePropagator {
         Ok(u)
     }
 
+    /// `W(t) = U_I(t, t_start) D` (the stored, Hermite-interpolated matrix; `D` is the constant
+    /// diagonal phase `diag(e^{i Ip_n t_start})`) at a located real time, as a fixed-size matrix.
+    /// `N` must equal [`HolePropagator::channels`].
+    pub(crate) fn w_matrix<const N: usize>(&self, at: &GridTime) -> Mat<N> {
+        debug_assert_eq!(N, self.channels);
+        let (first, w) = (at.first, at.weights);
+        let stride = 2 * N;
+        let mut u = zero::<N>();
+        for (m, row) in u.iter_mut().enumerate() {
+            let rows = self.stencil(m, first);
+            for (j, slot) in row.iter_mut().enumerate() {
+                let mut a = ZERO;
+                for i in 0..4 {
+                    let o = i * stride + j;
+                    a += rows[o] * w[i] + rows[o + N] * w[4 + i];
+                }
+                *slot = a;
+            }
+        }
+        u
+    }
+
+    /// The grid of the propagator.
+    pub(crate) fn grid(&self) -> Grid {
+        self.grid
+    }
+
     /// The stored data of row `m` at the four nodes `first..first + 4`.
     #[inline(always)]
     fn stencil(&self, m: usize, first: usize) -> &[Complex64] {

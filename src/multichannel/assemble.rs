@@ -2,17 +2,19 @@
 
 use std::sync::atomic::{AtomicUsize, Ordering};
 
-use nalgebra::{DMatrix, Matrix3, Vector3};
+use nalgebra::{DMatrix, Vector3};
 use num_complex::Complex64;
 use rayon::prelude::*;
 
-use super::holes::{HoleAccumulator, HoleContext};
-use super::stage::{PairStage, TrajectoryStage};
+use super::classes::{OrientationClass, classes};
+use super::holes::HoleAccumulator;
+use super::stage::TrajectoryStage;
+use super::terms::{ClassResult, Plan, compute_class};
 use crate::dipole::{KernelKind, SaddleSum};
 use crate::error::{Error, Result};
-use crate::field::{CVec3, Field, bdot};
-use crate::hole::HolePropagator;
-use crate::orbits::{FamilyLabel, Saddle};
+use crate::field::{CVec3, Field};
+use crate::momentum::rotate;
+use crate::orbits::FamilyLabel;
 use crate::orientation::{AlignmentGrid, Orientation, full_grid, linear_molecule_grid};
 use crate::spectrum::{Contribution, NEGLIGIBLE, project};
 use crate::target::{OrientationGridSpec, Target};
@@ -161,141 +163,31 @@ pub fn orientations(target: &Target, field: &Field) -> Result<Vec<Orientation>> 
     }
 }
 
-/// Rotates a complex vector by a real matrix.
-#[inline]
-fn rotate(r: &Matrix3<f64>, v: &CVec3) -> CVec3 {
-    CVec3::new(
-        v.x * r[(0, 0)] + v.y * r[(0, 1)] + v.z * r[(0, 2)],
-        v.x * r[(1, 0)] + v.y * r[(1, 1)] + v.z * r[(1, 2)],
-        v.x * r[(2, 0)] + v.y * r[(2, 1)] + v.z * r[(2, 2)],
-    )
-}
-
-/// Orientation-independent data of one saddle for the linear-field fast path.
-#[derive(Clone, Copy, Debug)]
-struct LinearSaddle {
-    /// Index of `(channel, energy, sign)` into the recombination cache.
-    rec_slot: usize,
-    /// Index of `(channel, v sign, E sign)` into the ionization cache.
-    ion_slot: usize,
-    /// Orientation-independent ionization scalar.
-    scalar: Complex64,
-}
-
-/// Everything the orientation loop reads.
-struct Context<'a> {
-    field: &'a Field,
-    target: &'a Target,
-    stage: &'a TrajectoryStage,
-    /// Linear fast path: per pair, family and grid point.
-    linear: Option<Vec<Vec<Vec<Option<LinearSaddle>>>>>,
-    /// Exact return momenta `k` (scalar along ê) per recombination slot, with the channel.
-    rec_momenta: Vec<(usize, usize, Complex64)>,
-    /// `(channel, v sign, E sign)` per ionization slot.
-    ion_keys: Vec<(usize, f64, f64)>,
-    holes: HoleContext,
-}
-
-impl<'a> Context<'a> {
-    fn new(field: &'a Field, target: &'a Target, stage: &'a TrajectoryStage, fast: bool) -> Self {
-        let mut rec_momenta = Vec::new();
-        let mut ion_keys: Vec<(usize, f64, f64)> = Vec::new();
-        let linear = match (fast, stage.linear_axis) {
-            (true, Some(axis)) => {
-                let nch = target.channels.len();
-                let ng = stage.grid.len();
-                // Slot of (channel, grid point, sign): 2 per (channel, point).
-                let mut rec_index = vec![usize::MAX; nch * ng * 2];
-                let ax = axis.map(|x| Complex64::new(x, 0.0));
-                let per_pair = stage
-                    .pairs
-                    .iter()
-                    .map(|p| {
-                        let ch = &target.channels[p.ion];
-                        p.table
-                            .families
-                            .iter()
-                            .map(|f| {
-                                f.points
-                                    .iter()
-                                    .enumerate()
-                                    .map(|(i, pt)| {
-                                        let s = pt.saddle()?;
-                                        let kr = bdot(&ax, &s.v_ret);
-                                        let exact = crate::cmath::sqrt(Complex64::new(
-                                            2.0 * (stage.grid[i] - target.channels[p.rec].ip),
-                                            0.0,
-                                        ));
-                                        let sr = if (kr - exact).norm() <= (kr + exact).norm() {
-                                            0
-                                        } else {
-                                            1
-                                        };
-                                        let key = (p.rec * ng + i) * 2 + sr;
-                                        if rec_index[key] == usize::MAX {
-                                            rec_index[key] = rec_momenta.len();
-                                            let k = if sr == 0 { exact } else { -exact };
-                                            rec_momenta.push((p.rec, i, k));
-                                        }
-                                        let kv = bdot(&ax, &s.v_ion);
-                                        let v_sign = if kv.im >= 0.0 { 1.0 } else { -1.0 };
-                                        let e_exit = axis.dot(&s.e_exit);
-                                        let e_sign = if e_exit >= 0.0 { 1.0 } else { -1.0 };
-                                        let ikey = (p.ion, v_sign, e_sign);
-                                        let ion_slot =
-                                            match ion_keys.iter().position(|k| *k == ikey) {
-                                                Some(j) => j,
-                                                None => {
-                                                    ion_keys.push(ikey);
-                                                    ion_keys.len() - 1
-                                                }
-                                            };
-                                        Some(LinearSaddle {
-                                            rec_slot: rec_index[key],
-                                            ion_slot,
-                                            scalar: ch
-                                                .ionization
-                                                .linear_scalar(bdot(&ax, &s.e_ion), e_exit.abs()),
-                                        })
-                                    })
-                                    .collect()
-                            })
-                            .collect()
-                    })
-                    .collect();
-                Some(per_pair)
-            }
-            _ => None,
-        };
-        Context {
-            field,
-            target,
-            stage,
-            linear,
-            rec_momenta,
-            ion_keys,
-            holes: HoleContext::new(field, target, stage),
-        }
-    }
-}
-
-/// Accumulated sums of one chunk of orientations.
+/// Accumulated sums of one chunk of orientation classes (lab frame).
 struct Accumulator {
     /// `[pair][family][grid point]`.
     dipoles: Vec<Vec<Vec<CVec3>>>,
+    /// `[pair][family][grid point]`: a saddle with structure in the phase failed there.
+    failed: Vec<Vec<Vec<bool>>>,
     holes: HoleAccumulator,
 }
 
 impl Accumulator {
-    fn new(ctx: &Context<'_>) -> Self {
+    fn new(plan: &Plan<'_>) -> Self {
+        let stage = plan.stage;
+        let ng = stage.grid.len();
         Accumulator {
-            dipoles: ctx
-                .stage
+            dipoles: stage
                 .pairs
                 .iter()
-                .map(|p| vec![vec![CVec3::zeros(); ctx.stage.grid.len()]; p.table.families.len()])
+                .map(|p| vec![vec![CVec3::zeros(); ng]; p.table.families.len()])
                 .collect(),
-            holes: HoleAccumulator::new(&ctx.holes),
+            failed: stage
+                .pairs
+                .iter()
+                .map(|p| vec![vec![false; ng]; p.table.families.len()])
+                .collect(),
+            holes: HoleAccumulator::new(&plan.holes),
         }
     }
 
@@ -307,135 +199,48 @@ impl Accumulator {
                 }
             }
         }
+        for (a, b) in self.failed.iter_mut().zip(&other.failed) {
+            for (fa, fb) in a.iter_mut().zip(b) {
+                for (x, y) in fa.iter_mut().zip(fb) {
+                    *x |= *y;
+                }
+            }
+        }
         self.holes.add(&other.holes);
     }
-}
 
-/// Hole propagator of one orientation (None when the ion needs no propagation).
-fn propagator(ctx: &Context<'_>, o: &Orientation) -> Result<Option<HolePropagator>> {
-    match &ctx.stage.samples {
-        Some(s) => HolePropagator::new(&ctx.target.ion, &o.rotation, s)
-            .map(Some)
-            .map_err(|e| Error::Numerical(format!("hole propagator: {e}"))),
-        None => Ok(None),
-    }
-}
-
-/// `[U_I]_mn` at a saddle of `pair`, family `f`, grid point `i`.
-fn hole_element(prop: Option<&HolePropagator>, pair: &PairStage, f: usize, i: usize) -> Complex64 {
-    match prop {
-        None => Complex64::new(if pair.ion == pair.rec { 1.0 } else { 0.0 }, 0.0),
-        Some(p) => match pair.times.get(f).and_then(|t| t[i].as_ref()) {
-            Some((tr, ti)) => p
-                .element_at(pair.rec, pair.ion, tr, ti)
-                .unwrap_or(Complex64::new(f64::NAN, f64::NAN)),
-            None => Complex64::new(f64::NAN, f64::NAN),
-        },
-    }
-}
-
-/// Structure prefactor of one saddle by direct evaluation (the reference path).
-fn structure_direct(
-    ctx: &Context<'_>,
-    o: &Orientation,
-    pair: &PairStage,
-    s: &Saddle,
-    omega: f64,
-) -> CVec3 {
-    let r = &o.rotation;
-    let rt = r.transpose();
-    let rec = &ctx.target.channels[pair.rec].recombination;
-    let ion = &ctx.target.channels[pair.ion].ionization;
-    let d = rotate(r, &rec.vector(&rotate(&rt, &s.v_ret), omega));
-    let a = ion.factor(
-        &rotate(&rt, &s.v_ion),
-        &rotate(&rt, &s.e_ion),
-        &(rt * s.e_exit),
-    );
-    d * a
-}
-
-/// Adds `weight ×` the contributions of orientation `o` to `acc`.
-fn add_orientation(
-    ctx: &Context<'_>,
-    o: &Orientation,
-    weight: f64,
-    acc: &mut Accumulator,
-) -> Result<()> {
-    let prop = propagator(ctx, o)?;
-    let r = &o.rotation;
-    let rt = r.transpose();
-    // Per-orientation caches of the linear fast path.
-    let (rec_cache, ion_cache): (Vec<CVec3>, Vec<Complex64>) =
-        match (&ctx.linear, ctx.stage.linear_axis) {
-            (Some(_), Some(axis)) => {
-                let axis_mol = rt * axis;
-                let ax = axis_mol.map(|x| Complex64::new(x, 0.0));
-                let rec = ctx
-                    .rec_momenta
-                    .iter()
-                    .map(|&(m, i, k)| {
-                        let model = &ctx.target.channels[m].recombination;
-                        rotate(r, &model.vector(&(ax * k), ctx.stage.grid[i]))
-                    })
-                    .collect();
-                let ion = ctx
-                    .ion_keys
-                    .iter()
-                    .map(|&(n, vs, es)| {
-                        let ch = &ctx.target.channels[n];
-                        ch.ionization
-                            .linear_angular(&axis_mol, vs, es, (2.0 * ch.ip).sqrt())
-                    })
-                    .collect();
-                (rec, ion)
-            }
-            _ => (Vec::new(), Vec::new()),
-        };
-    for (p, pair) in ctx.stage.pairs.iter().enumerate() {
-        for (f, family) in pair.table.families.iter().enumerate() {
-            let out = &mut acc.dipoles[p][f];
-            for (i, point) in family.points.iter().enumerate() {
-                let kernel = pair.kernels.values[f][i];
-                let Some(s) = point.saddle() else { continue };
-                if kernel.value == Complex64::new(0.0, 0.0) {
-                    continue;
+    /// Adds a class result for each of its members, rotated to the lab.
+    fn add_class(
+        &mut self,
+        plan: &Plan<'_>,
+        class: &OrientationClass,
+        list: &[Orientation],
+        result: &ClassResult,
+    ) {
+        for &o in &class.members {
+            let r = &list[o].rotation;
+            let w = Complex64::new(list[o].weight, 0.0);
+            for (a, b) in self.dipoles.iter_mut().zip(&result.dipoles) {
+                for (fa, fb) in a.iter_mut().zip(b) {
+                    for (x, y) in fa.iter_mut().zip(fb) {
+                        *x += rotate(r, y) * w;
+                    }
                 }
-                let u = hole_element(prop.as_ref(), pair, f, i);
-                let structure = match &ctx.linear {
-                    Some(lin) => match lin[p][f][i] {
-                        Some(ls) => rec_cache[ls.rec_slot] * (ion_cache[ls.ion_slot] * ls.scalar),
-                        None => continue,
-                    },
-                    None => structure_direct(ctx, o, pair, s, ctx.stage.grid[i]),
-                };
-                out[i] += structure * (kernel.value * u * weight);
             }
         }
+        for (a, b) in self.failed.iter_mut().zip(&result.failed) {
+            for (fa, fb) in a.iter_mut().zip(b) {
+                for (x, y) in fa.iter_mut().zip(fb) {
+                    *x |= *y;
+                }
+            }
+        }
+        self.holes
+            .add_class(&plan.holes, &result.holes, class.weight);
     }
-    let ionization = |p: usize, f: usize, i: usize| -> Complex64 {
-        let pair = &ctx.stage.pairs[p];
-        if let Some(lin) = &ctx.linear {
-            return match lin[p][f][i] {
-                Some(ls) => ion_cache[ls.ion_slot] * ls.scalar,
-                None => Complex64::new(0.0, 0.0),
-            };
-        }
-        match pair.table.families[f].points[i].saddle() {
-            Some(s) => ctx.target.channels[pair.ion].ionization.factor(
-                &rotate(&rt, &s.v_ion),
-                &rotate(&rt, &s.e_ion),
-                &(rt * s.e_exit),
-            ),
-            None => Complex64::new(0.0, 0.0),
-        }
-    };
-    acc.holes
-        .add_orientation(&ctx.holes, prop.as_ref(), weight, &ionization);
-    Ok(())
 }
 
-/// Assembles the orientation-averaged multichannel spectrum (parallel over orientations;
+/// Assembles the orientation-averaged multichannel spectrum (classes in parallel;
 /// `progress` is called with the number of orientations done).
 pub fn assemble(
     field: &Field,
@@ -444,54 +249,66 @@ pub fn assemble(
     linear_fast_path: bool,
     progress: &(dyn Fn(usize, usize) + Sync),
 ) -> Result<MultichannelSpectrum> {
-    let ctx = Context::new(field, target, stage, linear_fast_path);
+    let plan = Plan::new(field, target, stage, linear_fast_path, false);
     let list = orientations(target, field)?;
+    let groups = classes(&list, stage.linear_axis);
     let total = list.len();
-    let chunk = total.div_ceil(8).max(1);
+    let chunk = groups.len().div_ceil(8).max(1);
     let done = AtomicUsize::new(0);
-    let partial: Vec<Result<Accumulator>> = list
+    let partial: Vec<Result<Accumulator>> = groups
         .par_chunks(chunk)
-        .map(|os| {
-            let mut acc = Accumulator::new(&ctx);
-            for o in os {
-                add_orientation(&ctx, o, o.weight, &mut acc)?;
-                progress(done.fetch_add(1, Ordering::Relaxed) + 1, total);
+        .map(|cs| {
+            let mut acc = Accumulator::new(&plan);
+            for c in cs {
+                let result = compute_class(&plan, &c.rotation)?;
+                acc.add_class(&plan, c, &list, &result);
+                progress(
+                    done.fetch_add(c.members.len(), Ordering::Relaxed) + c.members.len(),
+                    total,
+                );
             }
             Ok(acc)
         })
         .collect();
-    let mut acc = Accumulator::new(&ctx);
+    let mut acc = Accumulator::new(&plan);
     for p in partial {
         acc.add(&p?);
     }
-    finish(&ctx, acc, total)
+    finish(&plan, acc, total)
 }
 
-/// The same sum, serially and with every structure factor evaluated per saddle: the plain
-/// reference path that [`assemble`] is tested against.
+/// The same sum, serially, one orientation at a time (no classes), with every structure factor
+/// evaluated per saddle and every complex-time hole propagator integrated directly from the real
+/// axis: the plain reference path that [`assemble`] is tested against.
 pub fn assemble_serial(
     field: &Field,
     target: &Target,
     stage: &TrajectoryStage,
 ) -> Result<MultichannelSpectrum> {
-    let ctx = Context::new(field, target, stage, false);
+    let plan = Plan::new(field, target, stage, false, true);
     let list = orientations(target, field)?;
-    let mut acc = Accumulator::new(&ctx);
-    for o in &list {
-        add_orientation(&ctx, o, o.weight, &mut acc)?;
+    let mut acc = Accumulator::new(&plan);
+    for (i, o) in list.iter().enumerate() {
+        let class = OrientationClass {
+            rotation: o.rotation,
+            members: vec![i],
+            weight: o.weight,
+        };
+        let result = compute_class(&plan, &o.rotation)?;
+        acc.add_class(&plan, &class, &list, &result);
     }
-    finish(&ctx, acc, list.len())
+    finish(&plan, acc, list.len())
 }
 
 /// Turns the accumulated sums into the spectrum.
-fn finish(ctx: &Context<'_>, mut acc: Accumulator, count: usize) -> Result<MultichannelSpectrum> {
-    let stage = ctx.stage;
-    let field = ctx.field;
+fn finish(plan: &Plan<'_>, mut acc: Accumulator, count: usize) -> Result<MultichannelSpectrum> {
+    let stage = plan.stage;
+    let field = plan.field;
     let axis = field.axis();
     let transverse = Vector3::new(axis.z, 0.0, -axis.x);
     // A β-only grid samples α = 0 only: the components across the lab z axis average to zero
     // over α and are removed.
-    if matches!(ctx.target.orientations, OrientationGridSpec::Axis(_)) {
+    if matches!(plan.target.orientations, OrientationGridSpec::Axis(_)) {
         for pair in &mut acc.dipoles {
             for fam in pair.iter_mut() {
                 for d in fam.iter_mut() {
@@ -538,7 +355,7 @@ fn finish(ctx: &Context<'_>, mut acc: Accumulator, count: usize) -> Result<Multi
                 *t += d;
             }
             for (k, c) in complete.iter_mut().enumerate() {
-                if family.points[central(k)].is_failure() {
+                if family.points[central(k)].is_failure() || acc.failed[p][f][central(k)] {
                     *c = false;
                 }
             }
@@ -568,14 +385,14 @@ fn finish(ctx: &Context<'_>, mut acc: Accumulator, count: usize) -> Result<Multi
             families,
         });
     }
-    let holes = acc.holes.finish(&ctx.holes);
+    let holes = acc.holes.finish(&plan.holes);
     Ok(MultichannelSpectrum {
         omega: field.omega(),
         energies: stage.energies.clone(),
         axis,
         transverse,
         sum: stage.sum,
-        labels: ctx
+        labels: plan
             .target
             .channels
             .iter()
@@ -587,6 +404,6 @@ fn finish(ctx: &Context<'_>, mut acc: Accumulator, count: usize) -> Result<Multi
         pairs,
         orientations: count,
         holes,
-        reference: ctx.holes.reference,
+        reference: plan.holes.reference,
     })
 }

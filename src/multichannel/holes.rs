@@ -1,9 +1,9 @@
 //! The hole density matrix decoded by each harmonic.
 //!
 //! For harmonic Ω and family f of the reference channel r (the lowest Ip), the returning
-//! electron left at `t₀ = Re t_i` and comes back at `t₁ = Re t_r` of that family's saddle (the
-//! delay `τ = Re(t_r − t_i)` is the clock that maps the harmonic to a time after ionization).
-//! The hole is created with the amplitudes
+//! electron left at the complex ionization time `t_i` and comes back at `t_r` of that family's
+//! saddle; the delay `τ = Re(t_r − t_i)` is the clock that maps the harmonic to a time after
+//! ionization. The hole is created with the amplitudes
 //!
 //! ```text
 //! a_n = a_n^ion · e^{−iW_n},
@@ -11,10 +11,19 @@
 //!
 //! the ionization factor of channel n at its own saddle (same family, same energy) times its
 //! sub-barrier exponential `W_n` (physics notes §3.5), and is propagated to recombination,
-//! `c = U_I(t₁, t₀) a`. The density matrix is `ρ = c c† / tr(c c†)` (DESIGN §4.8); over
-//! orientations the unnormalised `w_R c c†` are added (an incoherent ensemble of holes weighted by
-//! the ionization yield) and normalised at the end. Coherences are in the interaction picture
-//! (without the fast Bohr phases `e^{−i(Ip_m − Ip_n)t}`).
+//! `c = U_I(t_r, t_i) a`, with the hole propagator at the reference saddle's complex times
+//! (default; the sub-barrier leg moves the hole while the electron tunnels) or at their real
+//! parts ([`crate::hole::HoleContour::Real`]). At complex times `U_I` is not unitary, so `c` is
+//! not normalised by the propagation: what is reported is the density matrix of the normalised
+//! amplitude, `ρ = c c† / tr(c c†)` (DESIGN §4.8) — Hermitian, positive, unit trace, so the
+//! populations lie in [0, 1] and `|ρ_mn|² ≤ ρ_mm ρ_nn`. Over orientations the unnormalised
+//! `w_R c c†` are added (an incoherent ensemble of holes weighted by the ionization yield) and
+//! normalised at the end. Coherences are in the interaction picture (without the fast Bohr
+//! phases `e^{−i(Ip_m − Ip_n)t}`).
+//!
+//! Only saddles that contribute to the spectrum are listed: beyond a cutoff the growing member
+//! of a pair is not a physical saddle (the Stokes rule of [`crate::orbits::OrbitTable`]) and has
+//! no hole density — the same rule as the orbit tables and the plain sum.
 
 use nalgebra::DMatrix;
 use num_complex::Complex64;
@@ -22,17 +31,17 @@ use num_complex::Complex64;
 use super::assemble::{HoleDensity, HoleSample};
 use super::stage::TrajectoryStage;
 use crate::field::Field;
-use crate::hole::{GridTime, HolePropagator};
+use crate::orbits::Saddle;
 use crate::orbits::subbarrier::sub_barrier_action;
 use crate::target::Target;
 
 /// Where to find the data of one (reference family, energy) point.
 #[derive(Clone, Debug)]
 struct HolePoint {
-    /// `(Re t_i, Re t_r)` of the reference saddle.
-    times: (f64, f64),
-    /// Located times `(t_r, t_i)` on the propagation grid.
-    located: Option<(GridTime, GridTime)>,
+    /// Grid index of the point.
+    index: usize,
+    /// The reference saddle.
+    saddle: Saddle,
     /// Per channel: `(pair index, family index, grid index, e^{−iW_n})`, None if missing.
     channels: Vec<Option<(usize, usize, usize, Complex64)>>,
 }
@@ -41,6 +50,8 @@ struct HolePoint {
 pub(super) struct HoleContext {
     /// Index of the reference channel.
     pub reference: usize,
+    /// Index of the reference channel's diagonal pair, if solved.
+    pair: Option<usize>,
     /// Per reference family: label, half cycle and per requested energy the point data.
     families: Vec<(crate::orbits::FamilyLabel, i32, Vec<Option<HolePoint>>)>,
     channels: usize,
@@ -57,14 +68,17 @@ impl HoleContext {
         let nch = target.channels.len();
         let diag = |n: usize| stage.pairs.iter().position(|p| p.ion == n && p.rec == n);
         let mut families = Vec::new();
-        if let Some(pr) = diag(reference) {
-            let ref_pair = &stage.pairs[pr];
-            for (f, fam) in ref_pair.table.families.iter().enumerate() {
+        let pair = diag(reference);
+        if let Some(pr) = pair {
+            let ref_table = &stage.pairs[pr].table;
+            for (f, fam) in ref_table.families.iter().enumerate() {
                 let points = (0..stage.energies.len())
                     .map(|k| {
                         let i = stage.central(k);
                         let s = fam.points[i].saddle()?;
-                        let located = ref_pair.times.get(f).and_then(|t| t[i]);
+                        if !ref_table.is_physical(f, i) {
+                            return None;
+                        }
                         let channels = (0..nch)
                             .map(|n| {
                                 let p = diag(n)?;
@@ -84,8 +98,8 @@ impl HoleContext {
                             })
                             .collect();
                         Some(HolePoint {
-                            times: (s.t_ion.re, s.t_ret.re),
-                            located,
+                            index: i,
+                            saddle: *s,
                             channels,
                         })
                     })
@@ -95,9 +109,55 @@ impl HoleContext {
         }
         HoleContext {
             reference,
+            pair,
             families,
             channels: nch,
         }
+    }
+
+    /// The reference channel's diagonal pair (whose families the hole output follows).
+    pub fn reference_pair(&self) -> Option<usize> {
+        self.pair
+    }
+
+    /// The amplitudes `c = U a` of one orientation class per reference family and energy.
+    /// `ionization(p, f, i)` is the ionization factor of the saddle of pair `p`, family `f`,
+    /// grid point `i`; `propagator(f, i, m, n, s)` is `[U_I]_mn` at the reference saddle `s` of
+    /// family `f`, grid point `i`.
+    pub fn amplitudes(
+        &self,
+        ionization: &dyn Fn(usize, usize, usize) -> Complex64,
+        propagator: &dyn Fn(usize, usize, usize, usize, &Saddle) -> Complex64,
+    ) -> Vec<Vec<Option<Vec<Complex64>>>> {
+        let n = self.channels;
+        self.families
+            .iter()
+            .enumerate()
+            .map(|(f, (_, _, points))| {
+                points
+                    .iter()
+                    .map(|point| {
+                        let point = point.as_ref()?;
+                        let a: Vec<Complex64> = point
+                            .channels
+                            .iter()
+                            .map(|ch| match ch {
+                                Some((p, g, i, phase)) => ionization(*p, *g, *i) * phase,
+                                None => Complex64::new(0.0, 0.0),
+                            })
+                            .collect();
+                        let c = (0..n)
+                            .map(|m| {
+                                (0..n)
+                                    .map(|k| propagator(f, point.index, m, k, &point.saddle) * a[k])
+                                    .sum()
+                            })
+                            .collect();
+                        Some(c)
+                    })
+                    .collect()
+            })
+            .collect()
     }
 }
 
@@ -129,41 +189,17 @@ impl HoleAccumulator {
         }
     }
 
-    /// Adds orientation `o` with weight `w`; `ionization(p, f, i)` gives the ionization factor
-    /// of the saddle of pair `p`, family `f`, grid point `i` in this orientation.
-    pub fn add_orientation(
+    /// Adds the amplitudes of one class with total weight `weight`.
+    pub fn add_class(
         &mut self,
         ctx: &HoleContext,
-        prop: Option<&HolePropagator>,
+        amplitudes: &[Vec<Option<Vec<Complex64>>>],
         weight: f64,
-        ionization: &dyn Fn(usize, usize, usize) -> Complex64,
     ) {
         let n = ctx.channels;
-        let mut a = vec![Complex64::new(0.0, 0.0); n];
-        let mut c = vec![Complex64::new(0.0, 0.0); n];
-        for (fam, sums) in ctx.families.iter().zip(self.sums.iter_mut()) {
-            for (point, sum) in fam.2.iter().zip(sums.iter_mut()) {
-                let Some(point) = point else { continue };
-                for (slot, ch) in a.iter_mut().zip(&point.channels) {
-                    *slot = match ch {
-                        Some((p, f, i, phase)) => ionization(*p, *f, *i) * phase,
-                        None => Complex64::new(0.0, 0.0),
-                    };
-                }
-                match (prop, &point.located) {
-                    (Some(pr), Some((tr, ti))) => {
-                        for (m, cm) in c.iter_mut().enumerate() {
-                            *cm = (0..n)
-                                .map(|k| {
-                                    pr.element_at(m, k, tr, ti)
-                                        .unwrap_or(Complex64::new(f64::NAN, f64::NAN))
-                                        * a[k]
-                                })
-                                .sum();
-                        }
-                    }
-                    _ => c.copy_from_slice(&a),
-                }
+        for (fam, sums) in amplitudes.iter().zip(self.sums.iter_mut()) {
+            for (c, sum) in fam.iter().zip(sums.iter_mut()) {
+                let Some(c) = c else { continue };
                 for i in 0..n {
                     for j in 0..n {
                         sum[i * n + j] += c[i] * c[j].conj() * weight;
@@ -192,8 +228,8 @@ impl HoleAccumulator {
                             return None;
                         }
                         Some(HoleSample {
-                            t_ion: p.times.0,
-                            t_ret: p.times.1,
+                            t_ion: p.saddle.t_ion.re,
+                            t_ret: p.saddle.t_ret.re,
                             rho: DMatrix::from_fn(n, n, |i, j| s[i * n + j] / trace),
                             yield_weight: trace,
                         })

@@ -5,13 +5,25 @@ use std::sync::Arc;
 
 use nalgebra::Vector3;
 
-use super::MultichannelSettings;
+use super::{MultichannelSettings, StructurePlacement};
 use crate::dipole::{Kernels, kernels};
 use crate::error::{Error, Result};
 use crate::field::Field;
-use crate::hole::{FieldSamples, GridTime};
-use crate::orbits::{ChannelPair, OrbitTable, families, solve_orbits_seeded};
+use crate::hole::{FieldSamples, GridTime, HoleContour};
+use crate::momentum::GaussianSide;
+use crate::orbits::{ChannelPair, OrbitSettings, OrbitTable, families, solve_orbits_seeded};
 use crate::target::Target;
+
+/// The Gaussian structure of one channel that goes into the phase: the shells of its
+/// ionization and recombination sides (molecular frame), or None for a side that stays in the
+/// prefactor (by choice, or because its model has no Gaussian form).
+#[derive(Clone, Debug, Default)]
+pub struct ChannelStructure {
+    /// Ionization side in the phase.
+    pub ion: Option<GaussianSide>,
+    /// Recombination side in the phase.
+    pub rec: Option<GaussianSide>,
+}
 
 /// One channel pair `n → m` (ionize into `ion`, recombine into `rec`).
 #[derive(Clone, Debug)]
@@ -50,6 +62,16 @@ pub struct TrajectoryStage {
     pub tables_solved: usize,
     /// The saddle summation of the kernels.
     pub sum: crate::dipole::SaddleSum,
+    /// Regulator ε of the spreading factor.
+    pub epsilon: f64,
+    /// Where the hole propagator is evaluated.
+    pub contour: HoleContour,
+    /// Per channel, the Gaussian structure in the phase.
+    pub structure: Vec<ChannelStructure>,
+    /// Trajectory-stage settings (for the saddles with structure in the phase).
+    pub orbit_settings: OrbitSettings,
+    /// Classical seeds of the field (shared by every saddle problem).
+    pub seeds: Vec<families::SeedGroup>,
 }
 
 impl TrajectoryStage {
@@ -149,10 +171,7 @@ pub fn trajectory_stage(
     let mut cache: HashMap<(u64, u64), Arc<OrbitTable>> = HashMap::new();
     let mut pairs = Vec::with_capacity(list.len());
     for (ion, rec) in list {
-        let pair = ChannelPair {
-            ip_ion: target.channels[ion].ip,
-            ip_rec: target.channels[rec].ip,
-        };
+        let pair = ChannelPair::new(target.channels[ion].ip, target.channels[rec].ip);
         let key = (pair.ip_ion.to_bits(), pair.ip_rec.to_bits());
         let table = match cache.get(&key) {
             Some(t) => t.clone(),
@@ -177,6 +196,20 @@ pub fn trajectory_stage(
             times: Vec::new(),
         });
     }
+    let structure: Vec<ChannelStructure> = target
+        .channels
+        .iter()
+        .map(|c| ChannelStructure {
+            ion: match settings.ionization_structure {
+                StructurePlacement::Phase => GaussianSide::ionization(&c.ionization),
+                StructurePlacement::Prefactor => None,
+            },
+            rec: match settings.recombination_structure {
+                StructurePlacement::Phase => GaussianSide::recombination(&c.recombination),
+                StructurePlacement::Prefactor => None,
+            },
+        })
+        .collect();
     let samples = if propagation_needed(target) {
         let (mut lo, mut hi) = (f64::INFINITY, f64::NEG_INFINITY);
         for p in &pairs {
@@ -192,8 +225,11 @@ pub fn trajectory_stage(
                 "no saddle converged: nothing to propagate the hole over".into(),
             ));
         }
+        // Saddles with structure in the phase move by a fraction of a cycle at most: a margin of
+        // 0.1 cycle keeps their real parts inside the grid.
+        let margin = 1.0_f64.max(0.1 * 2.0 * std::f64::consts::PI / field.omega());
         let field_at = |t: f64| field.electric_real(t);
-        let s = FieldSamples::new(&field_at, lo - 1.0, hi + 1.0, settings.hole_step)
+        let s = FieldSamples::new(&field_at, lo - margin, hi + margin, settings.hole_step)
             .map_err(|e| Error::Numerical(format!("hole propagator grid: {e}")))?;
         for p in &mut pairs {
             p.times = p
@@ -225,5 +261,10 @@ pub fn trajectory_stage(
         linear_axis: field.linear_axis(),
         tables_solved: cache.len(),
         sum: settings.sum,
+        epsilon: settings.epsilon,
+        contour: settings.hole_contour,
+        structure,
+        orbit_settings: settings.orbits,
+        seeds,
     })
 }

@@ -92,8 +92,8 @@ pub fn solve_from(
     // saddle equations are evaluated at complex Ω by shifting the recombining channel's Ip.
     let eval_at = |x: &[Complex64; 3]| {
         let p = ChannelPair {
-            ip_ion: pair.ip_ion,
             ip_rec: 0.0,
+            ..pair
         };
         let e = evaluate(field, p, 0.0, x[0], x[1]);
         let f2 = e.residual[1] + pair.ip_rec - x[2];

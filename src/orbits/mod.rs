@@ -48,7 +48,7 @@ use serde::Serialize;
 
 pub use budget::WorkLimits;
 pub use coalescence::{Coalescence, HalfCycleCutoff};
-pub use equations::{ChannelPair, SaddleEval, evaluate};
+pub use equations::{ChannelPair, GaussianTerm, PhaseStructure, SaddleEval, evaluate};
 pub use families::{Branch, ClassicalPeak, DiscoverySettings, FamilyLabel};
 pub use newton::{NewtonSettings, Termination};
 pub use start::StartMethod;
@@ -87,6 +87,9 @@ pub struct Saddle {
     pub iterations: u32,
     /// Relative residual `max(|f₁|, |f₂|)/(Up + Ip)`.
     pub residual: f64,
+    /// Width `w` of the Gaussian structure in the phase (0 without): the spreading factor is
+    /// `(2π/(ε + iτ + w))^{3/2}` ([`equations`]).
+    pub width: f64,
 }
 
 /// Why a point has no saddle.

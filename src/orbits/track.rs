@@ -77,6 +77,7 @@ impl Member {
             hessian_root: self.root,
             iterations: self.iterations,
             residual: self.residual,
+            width: self.eval.width,
         }
     }
 }

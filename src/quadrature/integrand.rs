@@ -4,9 +4,14 @@
 //! [`super`] is completed by the factors that depend on the molecule:
 //!
 //! ```text
-//! K₀(i, k) · e^{iIp_n t_i} · R d̄_m(Rᵀ v_r, Ω_loc) · [U_I(t, t_i)]_mn · a_n(Rᵀ v_i, Rᵀ E(t_i)),
+//! K₀(i, k) · e^{iIp_n t_i} · [U_I(t, t_i)]_mn · R J_mn,
+//! J_mn = ∫ d³q e^{−(ε+iτ)q²/2} d̄_m(Rᵀ(v_r + q), Ω_loc) a_n(Rᵀ(v_i + q), Rᵀ E(t_i)),
 //! v_r = p_s + A(t),  v_i = p_s + A(t_i),  Ω_loc = ½ v_r² + Ip_m,
 //! ```
+//!
+//! with the momentum integral `J_mn` done exactly for Gaussian-type structure
+//! ([`crate::momentum::exact_integral`], [`MomentumIntegral::Exact`], the default) or by the
+//! shortcut `(2π/(ε+iτ))^{3/2} d̄_m(Rᵀv_r) a_n(Rᵀv_i, …)` ([`MomentumIntegral::Stationary`]).
 //!
 //! and added to the emission time `t = t_i + τ`. The factor `e^{−iIp_m t}` is applied after the
 //! orientation sum. `Ω_loc` is the photon energy that energy conservation at recombination
@@ -17,12 +22,34 @@
 use nalgebra::{Matrix3, Vector3};
 use num_complex::Complex64;
 
+use super::MomentumIntegral;
 use super::lattice::Lattice;
 use crate::error::{Error, Result};
 use crate::field::CVec3;
 use crate::hole::{FieldSamples, HolePropagator};
+use crate::ionization::IonizationModel;
+use crate::momentum::{GaussianSide, IonSide, RecSide, exact_integral};
 use crate::orientation::Orientation;
 use crate::target::Target;
+
+/// The Gaussian forms of one channel's structure models (None where a model has none).
+pub(super) struct ChannelSides {
+    pub ion: Option<GaussianSide>,
+    pub rec: Option<GaussianSide>,
+}
+
+impl ChannelSides {
+    pub fn of(target: &Target) -> Vec<ChannelSides> {
+        target
+            .channels
+            .iter()
+            .map(|c| ChannelSides {
+                ion: GaussianSide::ionization(&c.ionization),
+                rec: GaussianSide::recombination(&c.recombination),
+            })
+            .collect()
+    }
+}
 
 /// Everything the orientation loop reads.
 pub(super) struct Context<'a> {
@@ -30,6 +57,14 @@ pub(super) struct Context<'a> {
     pub lattice: &'a Lattice,
     /// `K₀`, row-major.
     pub kernel: &'a [Complex64],
+    /// `ρ = ε + iτ` per column.
+    pub rho: &'a [Complex64],
+    /// `(2π/ρ)^{3/2}` per column.
+    pub spreading: &'a [Complex64],
+    /// How the momentum integral is done.
+    pub momentum: MomentumIntegral,
+    /// Gaussian forms of every channel's models.
+    pub sides: &'a [ChannelSides],
     /// `(ion, rec)` of every coupled pair.
     pub pairs: &'a [(usize, usize)],
     /// `e^{iIp_n t_i}` per channel and birth row.
@@ -136,17 +171,48 @@ pub(super) fn orientation_sum(
             let v_ret_mol = complex(&(rt * v_ret));
             let v_ion_mol = complex(&(rt * v_ion));
             let kinetic = 0.5 * v_ret.norm_squared();
-            for (ch, model) in channels.iter().enumerate() {
-                rec[ch] = model.recombination.vector(&v_ret_mol, kinetic + model.ip);
-                ion[ch] = model.ionization.factor(&v_ion_mol, &e_mol_c, &e_mol);
-            }
-            for (p, &(n, m)) in ctx.pairs.iter().enumerate() {
-                let u = match &holes {
-                    Some(t) => t.element(m, n, j, i),
-                    None => Complex64::new(1.0, 0.0),
-                };
-                let scalar = k0 * ctx.birth_phase[n][i] * u * ion[n];
-                acc[p][j] += rec[m] * scalar;
+            match ctx.momentum {
+                MomentumIntegral::Stationary => {
+                    for (ch, model) in channels.iter().enumerate() {
+                        rec[ch] = model.recombination.vector(&v_ret_mol, kinetic + model.ip);
+                        ion[ch] = model.ionization.factor(&v_ion_mol, &e_mol_c, &e_mol);
+                    }
+                    let spread = ctx.spreading[c];
+                    for (p, &(n, m)) in ctx.pairs.iter().enumerate() {
+                        let u = match &holes {
+                            Some(t) => t.element(m, n, j, i),
+                            None => Complex64::new(1.0, 0.0),
+                        };
+                        let scalar = k0 * spread * ctx.birth_phase[n][i] * u * ion[n];
+                        acc[p][j] += rec[m] * scalar;
+                    }
+                }
+                MomentumIntegral::Exact => {
+                    let rho = ctx.rho[c];
+                    for (p, &(n, m)) in ctx.pairs.iter().enumerate() {
+                        let u = match &holes {
+                            Some(t) => t.element(m, n, j, i),
+                            None => Complex64::new(1.0, 0.0),
+                        };
+                        let ion_side = match (&ctx.sides[n].ion, &channels[n].ionization) {
+                            (Some(g), _) => IonSide::Gaussian(g),
+                            (None, IonizationModel::Constant { amplitude }) => {
+                                IonSide::Constant(*amplitude)
+                            }
+                            // check_models rejects the other models before the loop.
+                            (None, _) => IonSide::Constant(Complex64::new(f64::NAN, f64::NAN)),
+                        };
+                        let model = &channels[m];
+                        let rec_side = match &ctx.sides[m].rec {
+                            Some(g) => RecSide::Gaussian(g),
+                            None => RecSide::Model(&model.recombination, kinetic + model.ip),
+                        };
+                        let integral = exact_integral(
+                            ion_side, rec_side, &v_ion_mol, &v_ret_mol, &e_mol_c, rho,
+                        );
+                        acc[p][j] += integral * (k0 * ctx.birth_phase[n][i] * u);
+                    }
+                }
             }
         }
     }

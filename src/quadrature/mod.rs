@@ -183,7 +183,7 @@ use crate::multichannel::{
 };
 use crate::spectrum::{NEGLIGIBLE, project};
 use crate::target::{OrientationGridSpec, Target};
-use integrand::{Context, orientation_sum};
+use integrand::{ChannelSides, Context, orientation_sum};
 use lattice::Lattice;
 use window::ExcursionWindow;
 pub use window::WindowShape;
@@ -200,6 +200,20 @@ pub struct WindowSettings {
     pub fall_cycles: f64,
     /// Ramp shape.
     pub shape: WindowShape,
+}
+
+/// How the quadrature does the integral over the drift momentum.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Default)]
+#[serde(rename_all = "kebab-case")]
+pub enum MomentumIntegral {
+    /// Exactly, as a Gaussian moment, where both structure models are Gaussian-type (or
+    /// constant); a side with another model is evaluated at the mean momentum of the Gaussian
+    /// measure of the other side ([`crate::momentum`]). The reference.
+    #[default]
+    Exact,
+    /// The shortcut shared with the saddle path before: the spreading factor
+    /// `(2π/(ε + iτ))^{3/2}` times the structure factors at the stationary momentum `p_s`.
+    Stationary,
 }
 
 /// Settings of the quadrature.
@@ -220,6 +234,8 @@ pub struct QuadratureSettings {
     pub group_delay_step: Option<f64>,
     /// Largest step of the hole propagator grid (a.u.).
     pub hole_step: f64,
+    /// How the drift-momentum integral is done.
+    pub momentum: MomentumIntegral,
 }
 
 impl Default for QuadratureSettings {
@@ -241,6 +257,7 @@ impl Default for QuadratureSettings {
             birth_taper_cycles: 0.05,
             group_delay_step: Some(1e-3),
             hole_step: DEFAULT_MAX_STEP,
+            momentum: MomentumIntegral::Exact,
         }
     }
 }
@@ -518,7 +535,10 @@ pub fn time_dipole(
         settings.birth_taper_cycles * cycle,
         w.shape,
     )?;
-    let kernel = kernel::continuum_kernel(&lattice, settings.epsilon);
+    let kernel = kernel::continuum_kernel(&lattice);
+    let rho = kernel::column_rho(&lattice, settings.epsilon);
+    let spreading = kernel::column_spreading(&rho);
+    let sides = ChannelSides::of(target);
     let pairs = channel_pairs(target);
     let birth_phase: Vec<Vec<Complex64>> = target
         .channels
@@ -548,6 +568,10 @@ pub fn time_dipole(
         target,
         lattice: &lattice,
         kernel: &kernel,
+        rho: &rho,
+        spreading: &spreading,
+        momentum: settings.momentum,
+        sides: &sides,
         pairs: &pairs,
         birth_phase: &birth_phase,
         hole_samples: hole_samples.as_ref(),
