@@ -34,6 +34,9 @@ pub const MAX_WINDOW_EVALUATIONS: f64 = 2.0e7;
 pub const MAX_CLASSICAL_EVALUATIONS: f64 = 2.0e7;
 /// Default limit on the continuation steps of one orbit table (all families together).
 pub const MAX_CONTINUATION_STEPS: f64 = 1.0e6;
+/// Default limit on the number of photon energies of one request (each costs at least one
+/// continuation step per family and a row in every output).
+pub const MAX_ENERGY_POINTS: f64 = 1.0e6;
 
 /// Limits on the work of the trajectory stage (see the module documentation).
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -44,6 +47,8 @@ pub struct WorkLimits {
     pub classical_evaluations: f64,
     /// Continuation steps of one orbit table.
     pub continuation_steps: f64,
+    /// Photon energies of one request.
+    pub energy_points: f64,
 }
 
 impl Default for WorkLimits {
@@ -52,6 +57,7 @@ impl Default for WorkLimits {
             window_evaluations: MAX_WINDOW_EVALUATIONS,
             classical_evaluations: MAX_CLASSICAL_EVALUATIONS,
             continuation_steps: MAX_CONTINUATION_STEPS,
+            energy_points: MAX_ENERGY_POINTS,
         }
     }
 }
@@ -117,4 +123,23 @@ pub fn check(task: &str, estimated: f64, limit: f64, unit: &str, reason: &str) -
         unit: unit.to_string(),
         reason: reason.to_string(),
     })
+}
+
+/// Number of points of the grid `first, first + step, …, ≤ last` (as a float, so that an
+/// absurd grid is measured before anything is allocated).
+pub fn grid_points(first: f64, last: f64, step: f64) -> f64 {
+    ((last - first) / step + 1e-9).floor() + 1.0
+}
+
+/// Checks a grid of photon energies or orders before it is built: [`Error::WorkLimit`] if it
+/// would have more than `limits.energy_points` points (e.g. the default grid to 20% past the
+/// cutoff of a 1 mm wavelength, 4 × 10¹⁰ harmonic orders). For drivers that build the grid.
+pub fn check_grid(first: f64, last: f64, step: f64, limits: &WorkLimits) -> Result<()> {
+    check(
+        "photon-energy grid",
+        grid_points(first, last, step),
+        limits.energy_points,
+        "points",
+        &format!("from {first:.4e} to {last:.4e} in steps of {step:.4e}"),
+    )
 }

@@ -206,12 +206,12 @@ pub fn check_classical_work(
         "field evaluations",
         &format!(
             "{windows} half cycles above {:.0}% of the peak field, {} births each, followed \
-             for {} periods at {:.0} samples per period; use a shorter pulse or fewer returns",
+             for {} periods at about {:.0} field evaluations each; use a shorter pulse or fewer \
+             returns",
             100.0 * settings.crest_threshold,
             settings.births_per_crest,
             settings.max_returns + 1,
             budget::evaluations_per_birth(field, settings.max_returns)
-                / (f64::from(settings.max_returns) + 1.0)
         ),
     )
 }

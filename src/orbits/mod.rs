@@ -579,7 +579,7 @@ pub fn check_work(
         "continuation steps",
         &format!(
             "{groups:.0} groups of orbits, each continued over {:.4e} a.u. of photon energy in \
-             steps of at most {:.3} a.u. (Up = {:.4e} a.u., Ip = {:.4e} a.u., ω = {:.4e} a.u.)",
+             steps of at most {:.3e} a.u. (Up = {:.4e} a.u., Ip = {:.4e} a.u., ω = {:.4e} a.u.)",
             energies.iter().copied().fold(f64::NEG_INFINITY, f64::max) - pair.ip_rec,
             settings.max_step * field.omega(),
             field.ponderomotive_energy(),
@@ -614,6 +614,18 @@ pub fn solve_orbits_seeded(
         crate::error::require_positive("photon energy", e)?;
     }
     check_work(field, pair, energies, settings)?;
+    budget::check(
+        "photon energies",
+        energies.len() as f64,
+        settings.limits.energy_points,
+        "points",
+        "one row per energy",
+    )?;
+    if groups.is_empty() {
+        // `families::discover` returns no group for a field beyond the work limits: surface
+        // the error rather than an empty table.
+        families::try_discover(field, &settings.discovery, &settings.limits)?;
+    }
     budget::check(
         "continuation of the quantum orbits",
         budget::continuation_steps(
