@@ -14,7 +14,7 @@ use holecast::cutoff::half_cycle_cutoffs;
 use holecast::dipole::{SaddleSum, continuum_kernel, kernels};
 use holecast::field::{Colour, Envelope, Field, Polarization};
 use holecast::orbits::{
-    ChannelPair, FailureReason, OrbitPoint, OrbitSettings, OrbitTable, solve_orbits,
+    ChannelPair, FailureReason, OrbitPoint, OrbitSettings, OrbitTable, StartMethod, solve_orbits,
 };
 use holecast::units::{ev_to_au, intensity_to_peak_field, wavelength_nm_to_omega};
 
@@ -98,6 +98,9 @@ pub struct Audit {
     pub classical: f64,
     /// Quantum cutoff of the strongest half cycle, if found.
     pub quantum: Option<f64>,
+    /// Families per start method: classical pair, coalescence, transverse continuation, lone,
+    /// not started.
+    pub starts: [usize; 5],
 }
 
 impl Audit {
@@ -111,6 +114,9 @@ impl Audit {
             self.labelled[i] += o.labelled[i];
         }
         self.excluded += o.excluded;
+        for i in 0..5 {
+            self.starts[i] += o.starts[i];
+        }
         for n in &o.notes {
             if self.notes.len() < 3 {
                 self.notes.push(n.clone());
@@ -135,6 +141,16 @@ pub fn audit_table(t: &OrbitTable) -> Audit {
             if pr.minus == f { pr.plus } else { pr.minus }
         })
     };
+    for fam in &t.families {
+        let slot = match fam.start {
+            Some(StartMethod::ClassicalPair) => 0,
+            Some(StartMethod::Coalescence) => 1,
+            Some(StartMethod::TransverseContinuation) => 2,
+            Some(StartMethod::Lone) => 3,
+            None => 4,
+        };
+        a.starts[slot] += 1;
+    }
     for (f, fam) in t.families.iter().enumerate() {
         let own = fam.cutoff.estimate(t.pair);
         let margin = fam.cutoff.quantum.map_or(w, |c| w + 2.0 * c.omega.im.abs());

@@ -129,6 +129,11 @@ fn main() {
         total.excluded
     );
     println!(
+        "families by start: classical pair {}, coalescence {}, transverse continuation {}, \
+         lone {}, not started {}",
+        total.starts[0], total.starts[1], total.starts[2], total.starts[3], total.starts[4]
+    );
+    println!(
         "time: pulses {:.1} s, all {:.1} s",
         pulses.as_secs_f64(),
         start.elapsed().as_secs_f64()

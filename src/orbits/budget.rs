@@ -90,23 +90,22 @@ pub fn classical_evaluations(field: &Field, windows: usize, settings: &Discovery
         * evaluations_per_birth(field, settings.max_returns)
 }
 
-/// Estimated continuation steps of one orbit table: `groups` seed groups, each continued over
-/// the photon energies `energies` (a.u.) in steps of at most `max_step·ω`, from a start that
-/// lies above the recombination threshold `ip_rec`.
+/// Estimated continuation steps of one orbit table: `groups` seed groups, each continued in
+/// steps of at most `max_step·ω` from its start — in mid-plateau or just below the cutoff
+/// `Ip_rec + 3.17 Up + 0.32 Ip_ion` — down to the recombination threshold `ip_rec` and up to
+/// the highest of the photon energies `energies` (a.u.), plus one step per energy. Both
+/// sweeps of a group are counted over the whole range `[Ip_rec, max(Ω_max, cutoff)]`.
 pub fn continuation_steps(
     field: &Field,
     groups: usize,
     energies: &[f64],
     ip_rec: f64,
+    ip_ion: f64,
     max_step: f64,
 ) -> f64 {
     let hi = energies.iter().copied().fold(f64::NEG_INFINITY, f64::max);
-    let lo = energies
-        .iter()
-        .copied()
-        .fold(f64::INFINITY, f64::min)
-        .max(ip_rec);
-    let span = (hi - lo).max(0.0) + (hi - ip_rec).max(0.0);
+    let cutoff = ip_rec + 3.2 * field.ponderomotive_energy() + 0.4 * ip_ion;
+    let span = 2.0 * (hi.max(cutoff) - ip_rec).max(0.0);
     let per_group = span / (max_step * field.omega()) + energies.len() as f64 + 50.0;
     groups as f64 * per_group
 }

@@ -573,14 +573,20 @@ pub fn check_work(
             groups as usize,
             energies,
             pair.ip_rec,
+            pair.ip_ion,
             settings.max_step,
         ),
         settings.limits.continuation_steps,
         "continuation steps",
         &format!(
-            "{groups:.0} groups of orbits, each continued over {:.4e} a.u. of photon energy in \
-             steps of at most {:.3e} a.u. (Up = {:.4e} a.u., Ip = {:.4e} a.u., ω = {:.4e} a.u.)",
-            energies.iter().copied().fold(f64::NEG_INFINITY, f64::max) - pair.ip_rec,
+            "{groups:.0} groups of orbits, each continued from the threshold to {:.4e} a.u. \
+             (the higher of the last energy and the cutoff) in steps of at most {:.3e} a.u. \
+             (Up = {:.4e} a.u., Ip = {:.4e} a.u., ω = {:.4e} a.u.)",
+            energies
+                .iter()
+                .copied()
+                .fold(f64::NEG_INFINITY, f64::max)
+                .max(pair.ip_rec + 3.2 * field.ponderomotive_energy() + 0.4 * pair.ip_ion),
             settings.max_step * field.omega(),
             field.ponderomotive_energy(),
             pair.ip_ion.max(pair.ip_rec),
@@ -633,6 +639,7 @@ pub fn solve_orbits_seeded(
             groups.len(),
             energies,
             pair.ip_rec,
+            pair.ip_ion,
             settings.max_step,
         ),
         settings.limits.continuation_steps,

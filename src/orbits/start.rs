@@ -552,3 +552,94 @@ fn pulse_span(field: &Field) -> Option<(f64, f64)> {
         crate::field::TimeStructure::Periodic { .. } => None,
     }
 }
+
+#[cfg(test)]
+mod tests {
+    //! The fallback strategies, which the sweep of `examples/orbit_sweep` never needs (the
+    //! classical pair or the coalescence point always start first there), checked directly:
+    //! each must land on the saddles that the other strategies find.
+    use super::*;
+    use crate::field::{Colour, Envelope, Polarization};
+
+    fn elliptical(eps: f64) -> Field {
+        Field::new(
+            &[Colour {
+                omega: 0.057,
+                peak_field: 0.065,
+                phase: 0.0,
+                polarization: Polarization::Elliptical {
+                    ellipticity: eps,
+                    major_axis: 0.0,
+                },
+            }],
+            Envelope::Continuous,
+        )
+        .unwrap()
+    }
+
+    fn context(field: &Field, pair: ChannelPair) -> StartContext<'_> {
+        let scale = field.ponderomotive_energy() + pair.ip_ion;
+        StartContext {
+            field,
+            pair,
+            newton: NewtonSettings {
+                tolerance: 1e-11,
+                max_iterations: 60,
+                energy_scale: scale,
+                max_step: 0.5 / field.omega(),
+            },
+            scale,
+        }
+    }
+
+    /// The long and short saddles of the table of `field` at `omega`, half cycle 0.
+    fn tracked(field: &Field, pair: ChannelPair, omega: f64) -> Vec<(Complex64, Complex64)> {
+        let t = super::super::solve_orbits(field, pair, &[omega], &Default::default()).unwrap();
+        t.families
+            .iter()
+            .filter(|f| f.half_cycle == 0)
+            .map(|f| {
+                let s = f.points[0].saddle().unwrap();
+                (s.t_ret, s.t_ion)
+            })
+            .collect()
+    }
+
+    #[test]
+    fn transverse_continuation_lands_on_the_tracked_pair() {
+        for eps in [0.4, 0.8] {
+            let field = elliptical(eps);
+            let pair = ChannelPair::single(0.5);
+            let ctx = context(&field, pair);
+            let groups = families::discover(&field, &DiscoverySettings::default());
+            let group = groups.iter().find(|g| g.half_cycle == 0).unwrap();
+            let s = transverse_continuation(&ctx, group).expect("continued");
+            assert_eq!(s.method, StartMethod::TransverseContinuation);
+            let reference = tracked(&field, pair, s.state.omega);
+            for (m, label) in s.state.members.iter().zip(&s.labels) {
+                assert!(newton::relative_residual(&m.eval, ctx.scale) < 1e-9);
+                let slot = usize::from(label.branch == Branch::Short);
+                let (r, i) = reference[slot];
+                assert!(
+                    modulus(m.t_ret - r).max(modulus(m.t_ion - i)) < 1e-6,
+                    "ε = {eps}, {label}"
+                );
+            }
+        }
+    }
+
+    #[test]
+    fn lone_start_lands_on_its_family() {
+        let field = elliptical(0.0);
+        let pair = ChannelPair::single(0.5);
+        let ctx = context(&field, pair);
+        let groups = families::discover(&field, &DiscoverySettings::default());
+        let mut group = groups.iter().find(|g| g.half_cycle == 0).unwrap().clone();
+        group.branches.retain(|b| b.label.branch == Branch::Short);
+        let s = lone(&ctx, &group).expect("lone start");
+        assert_eq!(s.labels[0].branch, Branch::Short);
+        let m = &s.state.members[0];
+        let (r, i) = tracked(&field, pair, s.state.omega)[1];
+        assert!(modulus(m.t_ret - r).max(modulus(m.t_ion - i)) < 1e-6);
+    }
+}
