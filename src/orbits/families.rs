@@ -229,7 +229,9 @@ pub fn try_discover(
     Ok(discover_in(field, settings, &windows))
 }
 
-fn discover_in(
+/// The seed groups of the given birth windows only (e.g. the one window of a field derived
+/// from another, whose crest is known).
+pub(crate) fn discover_in(
     field: &Field,
     settings: &DiscoverySettings,
     windows: &[BirthWindow],
@@ -347,7 +349,9 @@ fn split_branches(
         let a = births[peak.saturating_sub(1).max(lo)];
         let b = births[(peak + 1).min(hi - 1)];
         let e_of = |t: f64| kth(t).map_or(f64::NEG_INFINITY, |e| e.energy);
-        let t = crate::field::golden_max(&e_of, a, b, 1e-9 * (b - a).abs().max(1e-12));
+        // The return energy is quadratic about its maximum: a birth time to 10⁻⁵ of the
+        // bracket gives the energy to ~10⁻¹⁰ relative, far below what the seeds need.
+        let t = crate::field::golden_max(&e_of, a, b, 1e-5 * (b - a).abs().max(1e-12));
         match kth(t) {
             Some(e) if e.energy >= at_peak.energy => (t, e),
             _ => (births[peak], at_peak),

@@ -714,35 +714,25 @@ pub fn solve_orbits_seeded(
         // a family with no classical trajectory on its branch (its electrons would return after
         // the field has ended, or none return at all) does not exist here; one whose branch
         // exists but could not be started is a failure.
-        let mut points: Vec<Vec<OrbitPoint>> = labels
+        let missing: Vec<FailureReason> = labels
             .iter()
             .map(|label| {
-                let missing = if !group.branches.iter().any(|b| b.label == *label) {
+                if !group.branches.iter().any(|b| b.label == *label) {
                     FailureReason::NoClassicalReturn
                 } else if cut_by_pulse_end {
                     FailureReason::ReturnsAfterPulse
                 } else {
                     FailureReason::NoStart
-                };
-                (0..n)
-                    .map(|k| {
-                        failed(
-                            if below(k) {
-                                FailureReason::BelowThreshold
-                            } else {
-                                missing
-                            },
-                            f64::NAN,
-                        )
-                    })
-                    .collect()
+                }
             })
             .collect();
-        let mut pair_points: Vec<Option<PairPoint>> = vec![None; n];
+        // Results per energy, then the points of each slot pushed in energy order.
+        let mut results: Vec<Option<track::TargetResult>> = (0..n).map(|_| None).collect();
+        let mut slots: Vec<usize> = Vec::new();
         let mut closest: Option<Closest> = None;
-        let mut minus_override: Option<usize> = None;
+        let mut reference: Option<branches::Reference> = None;
         if let Some(st) = &started {
-            let slots: Vec<usize> = st
+            slots = st
                 .labels
                 .iter()
                 .map(|l| labels.iter().position(|x| x == l).unwrap_or(0))
@@ -774,7 +764,6 @@ pub fn solve_orbits_seeded(
             let mut ignored: Option<Closest> = None;
             let up = track::sweep(field, pair, state, &up_targets, &track, &mut closest);
             let down = track::sweep(field, pair, state, &down_targets, &track, &mut ignored);
-            let mut reference: Option<branches::Reference> = None;
             for r in up.into_iter().chain(down) {
                 if r.index == usize::MAX {
                     if let [OrbitPoint::Solved(a), OrbitPoint::Solved(b)] = r.members.as_slice() {
@@ -789,17 +778,43 @@ pub fn solve_orbits_seeded(
                     }
                     continue;
                 }
-                for (m, p) in r.members.into_iter().enumerate() {
-                    points[slots[m]][r.index] = p;
+                let i = r.index;
+                results[i] = Some(r);
+            }
+        }
+        let mut points: Vec<Vec<OrbitPoint>> = vec![Vec::with_capacity(n); labels.len()];
+        let mut pair_points: Vec<Option<PairPoint>> = Vec::with_capacity(n);
+        for (k, r) in results.into_iter().enumerate() {
+            let mut filled = [false; 2];
+            if let Some(r) = r {
+                pair_points.push(r.pair);
+                let mut members: Vec<(usize, OrbitPoint)> =
+                    slots.iter().copied().zip(r.members).collect();
+                members.sort_by_key(|m| m.0);
+                for (slot, p) in members {
+                    points[slot].push(p);
+                    filled[slot] = true;
                 }
-                pair_points[r.index] = r.pair;
+            } else {
+                pair_points.push(None);
             }
-            if let Some(reference) = reference {
-                let minus_slot = slots[st.state.minus];
-                let new_minus =
-                    branches::normalise(&mut points, &mut pair_points, minus_slot, &reference);
-                minus_override = Some(new_minus);
+            for (slot, done) in filled.iter().enumerate() {
+                if !done {
+                    let reason = if below(k) {
+                        FailureReason::BelowThreshold
+                    } else {
+                        missing[slot]
+                    };
+                    points[slot].push(failed(reason, f64::NAN));
+                }
             }
+        }
+        let mut minus_override: Option<usize> = None;
+        if let (Some(st), Some(reference)) = (&started, reference) {
+            let minus_slot = slots[st.state.minus];
+            let new_minus =
+                branches::normalise(&mut points, &mut pair_points, minus_slot, &reference);
+            minus_override = Some(new_minus);
         }
         let paired = started.as_ref().is_some_and(|s| s.state.members.len() == 2);
 

@@ -380,15 +380,18 @@ fn projected_group(group: &SeedGroup, field: &Field) -> Option<(Field, SeedGroup
         crest_threshold: 0.0,
         ..DiscoverySettings::default()
     };
-    let matching = families::discover(&base, &settings)
+    let window = base
+        .birth_windows(0.0)
         .into_iter()
-        .filter(|g| g.return_index == group.return_index)
         .min_by(|a, b| {
             (a.crest - group.crest)
                 .abs()
                 .total_cmp(&(b.crest - group.crest).abs())
         })
-        .filter(|g| (g.crest - group.crest).abs() < 0.25 * period)?;
+        .filter(|w| (w.crest - group.crest).abs() < 0.25 * period)?;
+    let matching = families::discover_in(&base, &settings, &[window])
+        .into_iter()
+        .find(|g| g.return_index == group.return_index)?;
     Some((base, matching))
 }
 
