@@ -31,7 +31,7 @@ pub struct ReturnEvent {
 pub struct ReturnSearch {
     /// Largest return index sought.
     pub max_returns: usize,
-    /// Samples per period of the fastest field component.
+    /// Samples per period of the fastest mode that moves the electron ([`sampling_frequency`]).
     pub samples_per_cycle: usize,
 }
 
@@ -42,6 +42,26 @@ impl Default for ReturnSearch {
             samples_per_cycle: 32,
         }
     }
+}
+
+/// Fastest frequency that moves the electron noticeably: the largest mode frequency `ν_j`
+/// whose contribution to the excursion, `|a_j|/ν_j` (the amplitude of `∫A dt`), is at least
+/// `10⁻³` of the largest one (never below the reference frequency ω).
+///
+/// The return condition below depends on the return time only through `∫A`, in which a mode of
+/// vector-potential amplitude `a_j` enters as `a_j/ν_j`: a weak high-frequency colour (e.g. the
+/// 300th harmonic at 1% intensity, `|a|/ν` ≈ 10⁻⁶ of the fundamental's) does not move the
+/// electron and need not be resolved by the sampling, which would otherwise cost `ν_j/ω` times
+/// more field evaluations per trajectory.
+pub fn sampling_frequency(field: &Field) -> f64 {
+    let weight = |m: &crate::field::Mode| m.amplitude.norm() / m.frequency;
+    let largest = field.modes().iter().map(weight).fold(0.0, f64::max);
+    field
+        .modes()
+        .iter()
+        .filter(|m| weight(m) >= 1e-3 * largest)
+        .map(|m| m.frequency)
+        .fold(field.omega(), f64::max)
 }
 
 /// Returns of the electron born at `t0`, in time order (at most `search.max_returns`).
@@ -63,11 +83,7 @@ pub fn returns(field: &Field, t0: f64, search: &ReturnSearch) -> Vec<ReturnEvent
         let drift = -(b1 - b0) / (t1 - t0);
         ((drift + a0).dot(&e0), drift, a1)
     };
-    let nu_max = field
-        .modes()
-        .iter()
-        .map(|m| m.frequency)
-        .fold(field.omega(), f64::max);
+    let nu_max = sampling_frequency(field);
     let h = 2.0 * std::f64::consts::PI / (nu_max * search.samples_per_cycle as f64);
     let period = 2.0 * std::f64::consts::PI / field.omega();
     let mut horizon = t0 + (search.max_returns as f64 + 1.0) * period;

@@ -24,6 +24,21 @@ pub enum Error {
     /// A numerical procedure could not deliver a result (reported, never hidden).
     #[error("{0}")]
     Numerical(String),
+    /// A computation would exceed an explicit bound on its work (see
+    /// [`crate::orbits::budget`]); the estimate is made before the work starts.
+    #[error("{task}: estimated {estimated:.3e} {unit}, above the limit of {limit:.3e} ({reason})")]
+    WorkLimit {
+        /// What would have been computed.
+        task: String,
+        /// Estimated amount of work.
+        estimated: f64,
+        /// The limit it exceeds.
+        limit: f64,
+        /// Unit of both numbers (e.g. "continuation steps").
+        unit: String,
+        /// Where the work comes from and what would reduce it.
+        reason: String,
+    },
 }
 
 impl Error {

@@ -539,8 +539,11 @@ impl Field {
 
     /// Birth windows: the field's time span cut at the deep minima of `|E(t)|`, each with the
     /// highest crest inside it (one window per half cycle of a linear field, per lobe of a
-    /// bicircular field). A minimum between two maxima is deep if `|E|` there is below half the
-    /// lower of the two maxima; shallow dips (e.g. from a weak second colour) do not split a
+    /// bicircular field). A minimum between two maxima splits the window if `|E|` there is below
+    /// half the lower of the two maxima (deep), or if the field turns round between them: the
+    /// field vectors at the two maxima make an obtuse angle, `E(t_l)·E(t_r) < 0` (the two half
+    /// cycles of an elliptical field, whose `|E|` only dips to `ε` times its crest). Shallow dips
+    /// with the field still pointing the same way (e.g. from a weak second colour) do not split a
     /// window. Windows whose crest is below `threshold` times the highest crest are dropped.
     /// For a periodic field the windows cover one period.
     pub fn birth_windows(&self, threshold: f64) -> Vec<BirthWindow> {
@@ -584,18 +587,20 @@ impl Field {
             }
         }
         extrema.push((samples[n].0, samples[n].1, false));
-        // Cut at deep minima.
+        // Cut at deep minima and where the field turns round.
         let mut cuts = vec![0usize];
         for i in 1..extrema.len() - 1 {
             if extrema[i].2 {
                 continue;
             }
-            let left = extrema[..i].iter().rev().find(|e| e.2).map(|e| e.1);
-            let right = extrema[i + 1..].iter().find(|e| e.2).map(|e| e.1);
-            if let (Some(l), Some(r)) = (left, right)
-                && extrema[i].1 < 0.5 * l.min(r)
-            {
-                cuts.push(i);
+            let left = extrema[..i].iter().rev().find(|e| e.2);
+            let right = extrema[i + 1..].iter().find(|e| e.2);
+            if let (Some(l), Some(r)) = (left, right) {
+                let deep = extrema[i].1 < 0.5 * l.1.min(r.1);
+                let reversed = self.real_at(l.0).1.dot(&self.real_at(r.0).1) < 0.0;
+                if deep || reversed {
+                    cuts.push(i);
+                }
             }
         }
         cuts.push(extrema.len() - 1);

@@ -29,7 +29,7 @@ pub struct ZetaBranch {
     previous: Option<(f64, Complex64)>,
 }
 
-fn sqrt_matching(zeta: Complex64, delta: Complex64) -> Complex64 {
+pub(crate) fn sqrt_matching(zeta: Complex64, delta: Complex64) -> Complex64 {
     let s = crate::cmath::sqrt(zeta);
     let c = 2.0 / 3.0 * s * s * s;
     if modulus(c - delta) <= modulus(-c - delta) {

@@ -8,14 +8,37 @@
 //! - [`equations`]: the problem (saddle equations, analytic Jacobian and Hessian);
 //! - [`newton`]: the solver of one point;
 //! - [`families`]: classical seeds and family labels;
+//! - [`start`]: the first converged pair of each half cycle (classical seeds, the coalescence
+//!   point, continuation in the transverse field);
 //! - `track`: the driver that continues families along Ω with stable branches;
-//! - [`coalescence`]: the complex cutoff where the short and long saddles merge.
+//! - [`coalescence`]: the complex cutoff where the short and long saddles merge, per half cycle;
+//! - [`budget`]: explicit bounds on the work, checked before it starts.
+//!
+//! **Which saddles are summed** ([`OrbitTable::exclusion`]). A solved saddle is left out of the
+//! dipole, with its reason, if it lies outside the pulse; if `Im Φ < 0` (its amplitude
+//! `|e^{iΦ}| = e^{−Im Φ}` exceeds one: no tunnelling amplitude can); or, beyond the cutoff of
+//! its half cycle, if it is the member of its pair whose amplitude grows — the smaller `Im Φ`
+//! (the Stokes rule of physics notes §2.2: as for Ai(x) at x > 0 only the decaying saddle lies
+//! on the steepest-descent path).
+//!
+//! Beyond the cutoff the two saddles separate from the coalescence point `t_c` as
+//! `t_± ≈ t_c ± a u` with `a ∝ √(Ω − Ω_c)` ([`coalescence::split`]), and since
+//! `d Im Φ/dΩ = Im t_r` at a saddle (Φ is stationary in the times and contains `Ω t_r`), the
+//! decaying member is the one whose `Im t_r` rises above `Im t_r(t_c)` and the growing one falls
+//! below it. More than `ω/2 + 2|Im Ω_c|` past the cutoff (where the second-order drift of
+//! both members no longer matters) a member — paired or alone — whose `Im t_r` lies below the
+//! coalescence value is therefore growing and left out, even if it has the larger `Im Φ` of
+//! its pair: a pair that does not separate into a decaying and a growing member (met for weak
+//! half cycles at the end of a pulse) contributes nothing beyond its cutoff.
 
 pub mod airy_branch;
+mod branches;
+pub mod budget;
 pub mod coalescence;
 pub mod equations;
 pub mod families;
 pub mod newton;
+pub mod start;
 pub mod subbarrier;
 mod track;
 
@@ -23,15 +46,17 @@ use nalgebra::Vector3;
 use num_complex::Complex64;
 use serde::Serialize;
 
-pub use coalescence::Coalescence;
+pub use budget::WorkLimits;
+pub use coalescence::{Coalescence, HalfCycleCutoff};
 pub use equations::{ChannelPair, GaussianTerm, PhaseStructure, SaddleEval, evaluate};
-pub use families::{Branch, DiscoverySettings, FamilyLabel};
+pub use families::{Branch, ClassicalPeak, DiscoverySettings, FamilyLabel};
 pub use newton::{NewtonSettings, Termination};
+pub use start::StartMethod;
 
 use crate::error::{Error, Result};
 use crate::field::{CVec3, Field, TimeStructure};
-use airy_branch::ZetaBranch;
-use track::{Closest, GroupState, Member, TrackSettings};
+use start::StartContext;
+use track::{Closest, TrackSettings};
 
 /// A converged saddle point with everything the amplitude stage needs.
 #[derive(Clone, Copy, Debug)]
@@ -87,6 +112,68 @@ pub enum FailureReason {
     /// return has that energy, the families pass a branch point at Ω = Ip and the
     /// strong-field description does not hold. Not a failure: the point is left out.
     BelowThreshold,
+    /// No classical trajectory of this branch returns (for this return index) while the field
+    /// lasts — e.g. the long orbits of the last half cycle of a pulse, whose electrons would
+    /// come back after it has ended — and no quantum partner was found from the coalescence
+    /// point: the family does not exist here. Not a failure.
+    NoClassicalReturn,
+    /// The family's classical returns are cut by the end of the pulse — the return energy of
+    /// its half cycle is still rising where the returns reach the last T/16 of the pulse — and
+    /// no quantum orbit of it was found inside the pulse: its orbits return after the field has
+    /// ended. Not a failure.
+    ReturnsAfterPulse,
+    /// The family could not be continued to this energy, which lies more than 20% past its own
+    /// half cycle's cutoff ([`HalfCycleCutoff::estimate`]); there its contribution is
+    /// exponentially small (the decaying member beyond the cutoff). Not a failure.
+    BeyondHalfCycleCutoff,
+}
+
+impl FailureReason {
+    /// Whether the reason is a genuine failure (as opposed to a point where the family does not
+    /// exist or does not matter, which is labelled but not counted as failed).
+    pub fn is_failure(&self) -> bool {
+        !matches!(
+            self,
+            FailureReason::BelowThreshold
+                | FailureReason::NoClassicalReturn
+                | FailureReason::ReturnsAfterPulse
+                | FailureReason::BeyondHalfCycleCutoff
+        )
+    }
+}
+
+/// Why a solved saddle is not summed into the dipole ([`OrbitTable::exclusion`]).
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum Exclusion {
+    /// The orbit ionizes or returns where the pulse has ended (or not begun).
+    OutsidePulse,
+    /// `Im Φ < 0`: the amplitude `e^{−Im Φ}` exceeds one and grows.
+    GrowingAmplitude,
+    /// Beyond its half cycle's cutoff, the member of its pair with the smaller `Im Φ` (the
+    /// growing one; Stokes rule, physics notes §2.2) — or, more than `ω/2 + 2|Im Ω_c|` past
+    /// the cutoff, a member whose `Im t_r` lies below its value at the coalescence point (its
+    /// amplitude grows relative to the pair's: both members of a pair that does not separate
+    /// into a decaying and a growing one, as for a weak half cycle at the end of a pulse).
+    GrowingBeyondCutoff,
+    /// More than `ω/2 + 2|Im Ω_c|` past its half cycle's cutoff, with no partner at this
+    /// energy, and `Im t_r` below its value at the coalescence point (0 if that is unknown).
+    GrowingWithoutPartner,
+}
+
+impl std::fmt::Display for Exclusion {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.write_str(match self {
+            Exclusion::OutsidePulse => "ionizes or returns outside the pulse",
+            Exclusion::GrowingAmplitude => "growing amplitude (Im action < 0)",
+            Exclusion::GrowingBeyondCutoff => {
+                "beyond the cutoff: the growing member of the pair (Stokes rule)"
+            }
+            Exclusion::GrowingWithoutPartner => {
+                "beyond the cutoff without a partner, amplitude growing with energy"
+            }
+        })
+    }
 }
 
 impl std::fmt::Display for FailureReason {
@@ -107,6 +194,16 @@ impl std::fmt::Display for FailureReason {
             FailureReason::Unphysical => "solution has Im t_ion <= 0 or Re tau <= 0",
             FailureReason::BelowThreshold => {
                 "photon energy below the recombining channel's ionization potential"
+            }
+            FailureReason::NoClassicalReturn => {
+                "no classical trajectory of this branch returns while the field lasts: \
+                 no such family"
+            }
+            FailureReason::ReturnsAfterPulse => {
+                "the family's returns are cut by the end of the pulse: no orbit inside it"
+            }
+            FailureReason::BeyondHalfCycleCutoff => {
+                "more than 20% past this half cycle's own cutoff: not continued (negligible)"
             }
         };
         f.write_str(s)
@@ -138,9 +235,10 @@ pub enum OrbitPoint {
 }
 
 impl OrbitPoint {
-    /// Whether the point is a genuine failure (not a point left out below threshold).
+    /// Whether the point is a genuine failure (not a point labelled as outside the family's
+    /// existence: below threshold, no classical return, far past the half cycle's cutoff).
     pub fn is_failure(&self) -> bool {
-        matches!(self, OrbitPoint::Failed(f) if f.reason != FailureReason::BelowThreshold)
+        matches!(self, OrbitPoint::Failed(f) if f.reason.is_failure())
     }
 
     /// The saddle, if solved.
@@ -165,6 +263,10 @@ pub struct Family {
     pub points: Vec<OrbitPoint>,
     /// Index into [`OrbitTable::pairs`] if the family has a partner.
     pub pair: Option<usize>,
+    /// The cutoff of the family's half cycle and return (shared by both members of a pair).
+    pub cutoff: HalfCycleCutoff,
+    /// How the family was started (None: it was not).
+    pub start: Option<StartMethod>,
 }
 
 /// The Airy variable of a pair at one energy (physics notes §2.3).
@@ -192,9 +294,13 @@ pub struct FamilyPair {
     pub minus: usize,
     /// The other family ("+"; long for HHG).
     pub plus: usize,
-    /// Airy variable per energy (None where a member failed).
+    /// Airy variable per energy (None where a member failed; where the continued ζ
+    /// contradicts the pair's checked coalescence point — the side of the cutoff given by
+    /// `Re ζ` and by `Re Ω_c` disagree more than `ω/2 + 4|Im Ω_c|` away from it; where the pair was started beyond its cutoff, so that ζ has no plateau to
+    /// be continued from; or where both members grow).
     pub points: Vec<Option<PairPoint>>,
-    /// Complex coalescence point, if the grid reached past the closest approach.
+    /// The pair's complex coalescence point, when found and checked against the half cycle's
+    /// classical cutoff ([`coalescence::plausible`]).
     pub coalescence: Option<Coalescence>,
 }
 
@@ -211,6 +317,8 @@ pub struct OrbitTable {
     pub pairs: Vec<FamilyPair>,
     /// For a pulse, the interval `[start, end]` (a.u.) where the field is non-zero.
     pub pulse: Option<(f64, f64)>,
+    /// Reference angular frequency ω of the field (a.u.).
+    pub omega: f64,
 }
 
 impl OrbitTable {
@@ -227,35 +335,114 @@ impl OrbitTable {
         }
     }
 
-    /// Whether family `f` at point `k` is a physical contribution: inside the pulse, and always
-    /// below the cutoff; beyond it (Re ζ < 0) only the member that decays (larger Im Φ) of a pair
-    /// is kept.
+    /// Whether family `f` at point `k` is a physical contribution: solved and not excluded
+    /// ([`OrbitTable::exclusion`]).
     pub fn is_physical(&self, f: usize, k: usize) -> bool {
+        self.families[f].points[k].saddle().is_some() && self.exclusion(f, k).is_none()
+    }
+
+    /// Why the solved saddle of family `f` at point `k` is not summed, or None if it is (or if
+    /// the point is not solved: see [`Failure::reason`]). Rules in the module documentation.
+    pub fn exclusion(&self, f: usize, k: usize) -> Option<Exclusion> {
         let family = &self.families[f];
-        let Some(s) = family.points[k].saddle() else {
-            return false;
-        };
+        let s = family.points[k].saddle()?;
         if !self.inside_pulse(f, k) {
-            return false;
+            return Some(Exclusion::OutsidePulse);
         }
-        let Some(p) = family.pair else {
-            return true;
+        if s.action.im < 0.0 {
+            return Some(Exclusion::GrowingAmplitude);
+        }
+        let partner = family.pair.and_then(|p| {
+            let pair = &self.pairs[p];
+            let other = if pair.minus == f {
+                pair.plus
+            } else {
+                pair.minus
+            };
+            self.families[other].points[k].saddle().map(|o| (p, o))
+        });
+        let cutoff = &family.cutoff;
+        let far_beyond = match cutoff.quantum {
+            Some(c) => self.energies[k] > c.omega.re + 0.5 * self.omega + 2.0 * c.omega.im.abs(),
+            None => cutoff
+                .estimate(self.pair)
+                .is_some_and(|e| self.energies[k] > e + self.omega),
         };
+        let reference = cutoff.quantum.map_or(0.0, |c| c.t_ret.im);
+        let falling = far_beyond && s.t_ret.im < reference;
+        match partner {
+            Some((p, o)) => ((self.beyond_cutoff(p, k) && s.action.im < o.action.im) || falling)
+                .then_some(Exclusion::GrowingBeyondCutoff),
+            None => falling.then_some(Exclusion::GrowingWithoutPartner),
+        }
+    }
+
+    /// Whether point `k` lies beyond the cutoff of pair `p`: `Re ζ < 0` where the pair point
+    /// is known (it agrees with the checked coalescence point by construction), else
+    /// `Ω > Re Ω_c`, else Ω above the half cycle's estimated cutoff.
+    pub fn beyond_cutoff(&self, p: usize, k: usize) -> bool {
         let pair = &self.pairs[p];
-        match pair.points[k] {
-            Some(pp) if pp.beyond_cutoff() => {
-                let other = if pair.minus == f {
-                    pair.plus
-                } else {
-                    pair.minus
-                };
-                match self.families[other].points[k].saddle() {
-                    Some(o) => s.action.im >= o.action.im,
-                    None => true,
+        let cutoff = &self.families[pair.minus].cutoff;
+        match (pair.points[k], cutoff.quantum) {
+            (Some(pp), _) => pp.beyond_cutoff(),
+            (None, Some(c)) => self.energies[k] > c.omega.re,
+            (None, None) => cutoff
+                .estimate(self.pair)
+                .is_some_and(|e| self.energies[k] > e),
+        }
+    }
+
+    /// The cutoff of every half cycle (first and higher returns), one entry per seed group, in
+    /// the order of the families: `(half cycle, return index, cutoff)`.
+    pub fn half_cycle_cutoffs(&self) -> Vec<(i32, u32, HalfCycleCutoff)> {
+        let mut out: Vec<(i32, u32, HalfCycleCutoff)> = Vec::new();
+        for f in &self.families {
+            let key = (f.half_cycle, f.label.return_index);
+            if !out.iter().any(|e| (e.0, e.1) == key) {
+                out.push((key.0, key.1, f.cutoff));
+            }
+        }
+        out
+    }
+
+    /// The strongest half cycle: the first-return group with the highest classical cutoff.
+    pub fn strongest_half_cycle(&self) -> Option<(i32, HalfCycleCutoff)> {
+        self.half_cycle_cutoffs()
+            .into_iter()
+            .filter(|e| e.1 == 1)
+            .filter_map(|e| e.2.classical_energy.map(|c| (e.0, e.2, c)))
+            .max_by(|a, b| a.2.total_cmp(&b.2))
+            .map(|e| (e.0, e.1))
+    }
+
+    /// The quantum cutoff of the field for this channel pair: `Re Ω_c` of the strongest half
+    /// cycle (never the largest coalescence energy found anywhere, which may belong to a weak
+    /// half cycle's artefact). None if that half cycle's coalescence was not found or not
+    /// accepted.
+    pub fn quantum_cutoff(&self) -> Option<f64> {
+        self.strongest_half_cycle()
+            .and_then(|(_, c)| c.quantum.map(|q| q.omega.re))
+    }
+
+    /// Number of solved saddles excluded from the sums, per reason, in the order of
+    /// [`Exclusion`]'s variants.
+    pub fn exclusion_counts(&self) -> [(Exclusion, usize); 4] {
+        let mut out = [
+            (Exclusion::OutsidePulse, 0),
+            (Exclusion::GrowingAmplitude, 0),
+            (Exclusion::GrowingBeyondCutoff, 0),
+            (Exclusion::GrowingWithoutPartner, 0),
+        ];
+        for f in 0..self.families.len() {
+            for k in 0..self.energies.len() {
+                if let Some(e) = self.exclusion(f, k)
+                    && let Some(slot) = out.iter_mut().find(|x| x.0 == e)
+                {
+                    slot.1 += 1;
                 }
             }
-            _ => true,
         }
+        out
     }
 
     /// The table restricted to the points `k·stride + offset` (e.g. the central points of
@@ -283,6 +470,7 @@ impl OrbitTable {
                 })
                 .collect(),
             pulse: self.pulse,
+            omega: self.omega,
         }
     }
 
@@ -328,6 +516,8 @@ pub struct OrbitSettings {
     pub start_iterations: u32,
     /// Largest continuation step in Ω, as a fraction of the reference photon energy ω.
     pub max_step: f64,
+    /// Bounds on the work ([`budget`]).
+    pub limits: WorkLimits,
 }
 
 impl Default for OrbitSettings {
@@ -338,12 +528,14 @@ impl Default for OrbitSettings {
             step_iterations: 12,
             start_iterations: 60,
             max_step: 0.5,
+            limits: WorkLimits::default(),
         }
     }
 }
 
-/// Energy fractions of the branch maximum tried as start points, in order.
-const START_FRACTIONS: [f64; 8] = [0.5, 0.4, 0.6, 0.3, 0.7, 0.25, 0.8, 0.15];
+/// Fraction past a half cycle's own cutoff up to which every family must be continued; beyond
+/// it a family that cannot be continued is labelled [`FailureReason::BeyondHalfCycleCutoff`].
+pub const REQUIRED_REACH: f64 = 1.2;
 
 /// Solves every family of quantum orbits of `field` for the channel pair at the photon
 /// energies `energies` (a.u.).
@@ -353,12 +545,61 @@ pub fn solve_orbits(
     energies: &[f64],
     settings: &OrbitSettings,
 ) -> Result<OrbitTable> {
-    let groups = families::discover(field, &settings.discovery);
+    let groups = families::try_discover(field, &settings.discovery, &settings.limits)?;
     solve_orbits_seeded(field, pair, energies, settings, &groups)
+}
+
+/// Checks the work of [`solve_orbits`] against `settings.limits` before doing any: the
+/// birth-window search, the classical seeds and the continuation of every group over the
+/// energies (module [`budget`]). [`crate::Error::WorkLimit`] states the estimate and the limit.
+pub fn check_work(
+    field: &Field,
+    pair: ChannelPair,
+    energies: &[f64],
+    settings: &OrbitSettings,
+) -> Result<()> {
+    families::check_window_work(field, &settings.limits)?;
+    // The number of windows is not known before the search; the half cycles of the reference
+    // colour over the field's duration bound it for a linear field and estimate it otherwise.
+    let (t0, t1) = field.time_span();
+    let half_cycles = ((t1 - t0) * field.omega() / std::f64::consts::PI)
+        .ceil()
+        .max(1.0);
+    let groups = half_cycles * f64::from(settings.discovery.max_returns);
+    budget::check(
+        "continuation of the quantum orbits",
+        budget::continuation_steps(
+            field,
+            groups as usize,
+            energies,
+            pair.ip_rec,
+            pair.ip_ion,
+            settings.max_step,
+        ),
+        settings.limits.continuation_steps,
+        "continuation steps",
+        &format!(
+            "{groups:.0} groups of orbits, each continued from the threshold to {:.4e} a.u. \
+             (the higher of the last energy and the cutoff) in steps of at most {:.3e} a.u. \
+             (Up = {:.4e} a.u., Ip = {:.4e} a.u., ω = {:.4e} a.u.)",
+            energies
+                .iter()
+                .copied()
+                .fold(f64::NEG_INFINITY, f64::max)
+                .max(pair.ip_rec + 3.2 * field.ponderomotive_energy() + 0.4 * pair.ip_ion),
+            settings.max_step * field.omega(),
+            field.ponderomotive_energy(),
+            pair.ip_ion.max(pair.ip_rec),
+            field.omega()
+        ),
+    )
 }
 
 /// [`solve_orbits`] with the classical seeds already found ([`families::discover`] depends on
 /// the field and the discovery settings only, so one discovery serves every channel pair).
+///
+/// Every seed group yields two families (long, then short) whether or not both were found:
+/// points of a family that does not exist carry their reason ([`FailureReason`]).
 pub fn solve_orbits_seeded(
     field: &Field,
     pair: ChannelPair,
@@ -378,6 +619,33 @@ pub fn solve_orbits_seeded(
     for &e in energies {
         crate::error::require_positive("photon energy", e)?;
     }
+    check_work(field, pair, energies, settings)?;
+    budget::check(
+        "photon energies",
+        energies.len() as f64,
+        settings.limits.energy_points,
+        "points",
+        "one row per energy",
+    )?;
+    if groups.is_empty() {
+        // `families::discover` returns no group for a field beyond the work limits: surface
+        // the error rather than an empty table.
+        families::try_discover(field, &settings.discovery, &settings.limits)?;
+    }
+    budget::check(
+        "continuation of the quantum orbits",
+        budget::continuation_steps(
+            field,
+            groups.len(),
+            energies,
+            pair.ip_rec,
+            pair.ip_ion,
+            settings.max_step,
+        ),
+        settings.limits.continuation_steps,
+        "continuation steps",
+        &format!("{} groups of orbits", groups.len()),
+    )?;
     let omega = field.omega();
     let up = field.ponderomotive_energy();
     let scale = up + pair.ip_ion.max(pair.ip_rec);
@@ -393,9 +661,14 @@ pub fn solve_orbits_seeded(
         min_step: 1e-9 * omega,
         lone_correction: 0.3 / omega,
     };
-    let start_newton = NewtonSettings {
-        max_iterations: settings.start_iterations,
-        ..newton
+    let ctx = StartContext {
+        field,
+        pair,
+        newton: NewtonSettings {
+            max_iterations: settings.start_iterations,
+            ..newton
+        },
+        scale,
     };
     // Energies at or below the recombination threshold are left out (FailureReason::BelowThreshold).
     let mut order: Vec<usize> = (0..energies.len())
@@ -403,6 +676,14 @@ pub fn solve_orbits_seeded(
         .collect();
     order.sort_by(|&a, &b| energies[a].total_cmp(&energies[b]));
     let below = |i: usize| energies[i] <= pair.ip_rec;
+    let max_energy = order.last().map(|&i| energies[i]).unwrap_or(0.0);
+    let failed = |reason: FailureReason, residual: f64| {
+        OrbitPoint::Failed(Failure {
+            reason,
+            iterations: 0,
+            residual,
+        })
+    };
 
     let mut table = OrbitTable {
         pair,
@@ -413,168 +694,257 @@ pub fn solve_orbits_seeded(
             TimeStructure::Pulse { start, end } => Some((start, end)),
             TimeStructure::Periodic { .. } => None,
         },
+        omega,
     };
     for group in groups {
-        let labels: Vec<FamilyLabel> = group.branches.iter().map(|b| b.label).collect();
-        let start = start_group(field, pair, group, &start_newton);
-        let first = table.families.len();
+        let labels = group.labels();
         let n = energies.len();
-        let mut points: Vec<Vec<OrbitPoint>> = vec![Vec::with_capacity(n); labels.len()];
-        let mut pair_points: Vec<Option<PairPoint>> = vec![None; n];
-        let mut closest = None;
-        match &start {
-            Some(state) => {
-                let mut results: Vec<Option<track::TargetResult>> = (0..n).map(|_| None).collect();
-                let up_targets: Vec<(usize, f64)> = order
-                    .iter()
-                    .filter(|&&i| energies[i] >= state.omega)
-                    .map(|&i| (i, energies[i]))
-                    .collect();
-                let down_targets: Vec<(usize, f64)> = order
-                    .iter()
-                    .rev()
-                    .filter(|&&i| energies[i] < state.omega)
-                    .map(|&i| (i, energies[i]))
-                    .collect();
-                let mut ignored: Option<Closest> = None;
-                for r in track::sweep(field, pair, state, &up_targets, &track, &mut closest) {
-                    let i = r.index;
-                    results[i] = Some(r);
-                }
-                for r in track::sweep(field, pair, state, &down_targets, &track, &mut ignored) {
-                    let i = r.index;
-                    results[i] = Some(r);
-                }
-                for (k, r) in results.into_iter().enumerate() {
-                    if below(k) {
-                        for p in points.iter_mut() {
-                            p.push(OrbitPoint::Failed(Failure {
-                                reason: FailureReason::BelowThreshold,
-                                iterations: 0,
-                                residual: f64::NAN,
-                            }));
-                        }
-                        continue;
-                    }
-                    let r = r.ok_or_else(|| {
-                        Error::Numerical(format!("energy point {k} was not visited"))
-                    })?;
-                    for (m, p) in r.members.into_iter().enumerate() {
-                        points[m].push(p);
-                    }
-                    pair_points[k] = r.pair;
-                }
-            }
-            None => {
-                for p in points.iter_mut() {
-                    p.extend((0..n).map(|k| {
-                        OrbitPoint::Failed(Failure {
-                            reason: if below(k) {
-                                FailureReason::BelowThreshold
-                            } else {
-                                FailureReason::NoStart
-                            },
-                            iterations: settings.start_iterations,
-                            residual: f64::NAN,
-                        })
-                    }));
-                }
-            }
-        }
-        let pair_index = if labels.len() == 2 && start.is_some() {
-            Some(table.pairs.len())
+        let started = if group.peak.is_some() || !group.branches.is_empty() {
+            start::start(&ctx, group)
         } else {
             None
         };
-        for (label, pts) in labels.iter().zip(points) {
+        let cut_by_pulse_end = match (group.peak, table.pulse) {
+            (Some(p), Some((_, end))) => {
+                !p.interior && p.return_time >= end - std::f64::consts::PI / (8.0 * omega)
+            }
+            _ => false,
+        };
+        // Points per label slot (long, short); a slot the start did not fill keeps its reason:
+        // a family with no classical trajectory on its branch (its electrons would return after
+        // the field has ended, or none return at all) does not exist here; one whose branch
+        // exists but could not be started is a failure.
+        let missing: Vec<FailureReason> = labels
+            .iter()
+            .map(|label| {
+                if !group.branches.iter().any(|b| b.label == *label) {
+                    FailureReason::NoClassicalReturn
+                } else if cut_by_pulse_end {
+                    FailureReason::ReturnsAfterPulse
+                } else {
+                    FailureReason::NoStart
+                }
+            })
+            .collect();
+        // Results per energy, then the points of each slot pushed in energy order.
+        let mut results: Vec<Option<track::TargetResult>> = (0..n).map(|_| None).collect();
+        let mut slots: Vec<usize> = Vec::new();
+        let mut closest: Option<Closest> = None;
+        let mut reference: Option<branches::Reference> = None;
+        if let Some(st) = &started {
+            slots = st
+                .labels
+                .iter()
+                .map(|l| labels.iter().position(|x| x == l).unwrap_or(0))
+                .collect();
+            let state = &st.state;
+            // The plateau reference of the branch choices (module `branches`), visited by the
+            // sweeps like a requested energy but not part of the table.
+            let reference_energy = group
+                .peak
+                .filter(|_| st.state.members.len() == 2)
+                .map(|p| pair.ip_rec + 0.5 * p.energy)
+                .filter(|&e| e > pair.ip_rec);
+            let mut targets: Vec<(usize, f64)> = order.iter().map(|&i| (i, energies[i])).collect();
+            if let Some(e) = reference_energy {
+                targets.push((usize::MAX, e));
+                targets.sort_by(|a, b| a.1.total_cmp(&b.1));
+            }
+            let up_targets: Vec<(usize, f64)> = targets
+                .iter()
+                .filter(|t| t.1 >= state.omega)
+                .copied()
+                .collect();
+            let down_targets: Vec<(usize, f64)> = targets
+                .iter()
+                .rev()
+                .filter(|t| t.1 < state.omega)
+                .copied()
+                .collect();
+            let mut ignored: Option<Closest> = None;
+            let up = track::sweep(field, pair, state, &up_targets, &track, &mut closest);
+            let down = track::sweep(field, pair, state, &down_targets, &track, &mut ignored);
+            for r in up.into_iter().chain(down) {
+                if r.index == usize::MAX {
+                    if let [OrbitPoint::Solved(a), OrbitPoint::Solved(b)] = r.members.as_slice() {
+                        let mut saddles = [*a, *b];
+                        if slots[0] != 0 {
+                            saddles.swap(0, 1);
+                        }
+                        reference = Some(branches::Reference {
+                            saddles,
+                            pair: r.pair,
+                        });
+                    }
+                    continue;
+                }
+                let i = r.index;
+                results[i] = Some(r);
+            }
+        }
+        let mut points: Vec<Vec<OrbitPoint>> = vec![Vec::with_capacity(n); labels.len()];
+        let mut pair_points: Vec<Option<PairPoint>> = Vec::with_capacity(n);
+        for (k, r) in results.into_iter().enumerate() {
+            let mut filled = [false; 2];
+            if let Some(r) = r {
+                pair_points.push(r.pair);
+                let mut members: Vec<(usize, OrbitPoint)> =
+                    slots.iter().copied().zip(r.members).collect();
+                members.sort_by_key(|m| m.0);
+                for (slot, p) in members {
+                    points[slot].push(p);
+                    filled[slot] = true;
+                }
+            } else {
+                pair_points.push(None);
+            }
+            for (slot, done) in filled.iter().enumerate() {
+                if !done {
+                    let reason = if below(k) {
+                        FailureReason::BelowThreshold
+                    } else {
+                        missing[slot]
+                    };
+                    points[slot].push(failed(reason, f64::NAN));
+                }
+            }
+        }
+        let mut minus_override: Option<usize> = None;
+        if let (Some(st), Some(reference)) = (&started, reference) {
+            let minus_slot = slots[st.state.minus];
+            let new_minus =
+                branches::normalise(&mut points, &mut pair_points, minus_slot, &reference);
+            minus_override = Some(new_minus);
+        }
+        let paired = started.as_ref().is_some_and(|s| s.state.members.len() == 2);
+
+        // The half cycle's cutoff: the coalescence point from the closest approach seen while
+        // tracking, from the start, or from the classical cutoff trajectory, the first that
+        // passes the check against the classical cutoff.
+        let mut cutoff = HalfCycleCutoff {
+            classical: group.peak,
+            classical_energy: group.peak.map(|p| pair.ip_rec + p.energy),
+            quantum: None,
+            rejected: None,
+        };
+        let transverse = field.linear_axis().is_none();
+        let continued = if paired && transverse {
+            started
+                .as_ref()
+                .and_then(|s| s.coalescence)
+                .filter(|_| started.as_ref().is_some_and(|s| s.from_transverse))
+                .or_else(|| start::transverse_coalescence(&ctx, group))
+        } else {
+            None
+        };
+        if let Some(c) = continued {
+            // Continued from the linear projection, where it was checked.
+            cutoff.quantum = Some(c);
+        } else if let (true, Some(peak)) = (paired, group.peak) {
+            let mut candidates: Vec<Coalescence> = Vec::new();
+            if let Some(c) = closest.filter(|c| c.omega < max_energy) {
+                candidates.push(coalescence::solve(
+                    field, pair, c.omega, c.t_ret, c.t_ion, scale,
+                ));
+            }
+            if let Some(c) = started.as_ref().and_then(|s| s.coalescence) {
+                candidates.push(c);
+            }
+            for c in candidates {
+                if coalescence::plausible(&c, pair, &peak, &group.window, omega, table.pulse) {
+                    cutoff.quantum = Some(c);
+                    break;
+                }
+                if c.converged && cutoff.rejected.is_none() {
+                    cutoff.rejected = Some(c);
+                }
+            }
+            if cutoff.quantum.is_none() {
+                let (found, rejected) = start::find_coalescence(&ctx, group, &peak);
+                cutoff.quantum = found;
+                cutoff.rejected = cutoff.rejected.or(rejected);
+            }
+        }
+        // Far past the half cycle's own cutoff a family that could not be continued is
+        // labelled, not counted as failed.
+        if let Some(top) = cutoff.estimate(pair) {
+            for (k, &e) in energies.iter().enumerate() {
+                if e > REQUIRED_REACH * top {
+                    for slot in points.iter_mut() {
+                        if let OrbitPoint::Failed(f) = &mut slot[k]
+                            && f.reason.is_failure()
+                        {
+                            f.reason = FailureReason::BeyondHalfCycleCutoff;
+                        }
+                    }
+                }
+            }
+        }
+        // ζ continued along the sweep must agree with the checked coalescence point about the
+        // side of the cutoff, except close to it: near Ω_c, ζ ≈ c·(Ω_c − Ω) changes the sign of
+        // its real part where arg(Ω_c − Ω) = π/2 − arg c, within a few |Im Ω_c| of Re Ω_c; a
+        // disagreement deep in the plateau or far beyond is a ζ on a wrong cube root.
+        if let Some(c) = cutoff.quantum {
+            let margin = 0.5 * omega + 4.0 * c.omega.im.abs();
+            for (k, pp) in pair_points.iter_mut().enumerate() {
+                if let Some(z) = pp {
+                    let side_zeta = z.beyond_cutoff();
+                    let side_omega = energies[k] > c.omega.re;
+                    if side_zeta != side_omega && (energies[k] - c.omega.re).abs() > margin {
+                        *pp = None;
+                    }
+                }
+            }
+        }
+        let first = table.families.len();
+        let pair_index = paired.then_some(table.pairs.len());
+        let method = started.as_ref().map(|s| s.method);
+        let filled: Vec<bool> = labels
+            .iter()
+            .map(|l| started.as_ref().is_some_and(|s| s.labels.contains(l)))
+            .collect();
+        for ((label, pts), has) in labels.iter().zip(points).zip(filled) {
             table.families.push(Family {
                 label: *label,
                 half_cycle: group.half_cycle,
                 crest: group.crest,
                 points: pts,
                 pair: pair_index,
+                cutoff,
+                start: if has { method } else { None },
             });
         }
-        if let (Some(state), Some(_)) = (&start, pair_index) {
-            let max_energy = order.last().map(|&i| energies[i]).unwrap_or(0.0);
-            let coalescence = closest
-                .filter(|c| c.omega < max_energy)
-                .map(|c| coalescence::solve(field, pair, c.omega, c.t_ret, c.t_ion, scale));
+        if let Some(st) = started.as_ref().filter(|_| paired) {
+            // Set below once the families are in the table.
+            // Slot order is (long, short) = (first, first + 1); "−" is the member with the
+            // larger Re Φ at the start.
+            let minus_label = st.labels[st.state.minus];
+            let minus = first
+                + minus_override
+                    .unwrap_or_else(|| labels.iter().position(|l| *l == minus_label).unwrap_or(0));
+            let plus = if minus == first { first + 1 } else { first };
             table.pairs.push(FamilyPair {
-                minus: first + state.minus,
-                plus: first + 1 - state.minus,
+                minus,
+                plus,
                 points: pair_points,
-                coalescence,
+                coalescence: cutoff.quantum,
             });
+            // Where neither member may be summed (both growing), the uniform formula has no
+            // decaying saddle to approach: the pair point is dropped so that the plain sum with
+            // these exclusions is used.
+            let p = table.pairs.len() - 1;
+            for k in 0..n {
+                let growing = |f: usize| {
+                    matches!(
+                        table.exclusion(f, k),
+                        Some(Exclusion::GrowingAmplitude | Exclusion::GrowingBeyondCutoff)
+                    )
+                };
+                if growing(minus) && growing(plus) {
+                    table.pairs[p].points[k] = None;
+                }
+            }
         }
     }
     Ok(table)
-}
-
-/// Finds a converged physical start for every member of a group from classical seeds.
-fn start_group(
-    field: &Field,
-    pair: ChannelPair,
-    group: &families::SeedGroup,
-    newton_settings: &NewtonSettings,
-) -> Option<GroupState> {
-    let e_max = group
-        .branches
-        .iter()
-        .map(|b| b.max_energy())
-        .fold(0.0, f64::max);
-    let omega_ref = field.omega();
-    'fractions: for frac in START_FRACTIONS {
-        let kinetic = frac * e_max;
-        let omega = pair.ip_rec + kinetic;
-        let mut members = Vec::new();
-        for b in &group.branches {
-            let Some((t0, t1)) = b.at_energy(kinetic) else {
-                continue 'fractions;
-            };
-            let (a0, e0, b0) = field.real_at(t0);
-            let (_, _, b1) = field.real_at(t1);
-            let drift = -(b1 - b0) / (t1 - t0);
-            let v0 = drift + a0;
-            let local = e0.norm().max(1e-300);
-            let gamma = omega_ref * (2.0 * pair.ip_ion + v0.norm_squared()).sqrt() / local;
-            let t_ion = Complex64::new(t0, gamma.asinh() / omega_ref);
-            let t_ret = Complex64::new(t1, 0.0);
-            let out = newton::solve(field, pair, omega, t_ret, t_ion, newton_settings);
-            if track::physical_start(&out).is_err() {
-                continue 'fractions;
-            }
-            members.push(Member::new(
-                out.t_ret,
-                out.t_ion,
-                out.eval,
-                out.iterations,
-                out.residual,
-            ));
-        }
-        if members.len() == 2 && members[0].distance(&members[1]) < 1e-3 / omega_ref {
-            continue;
-        }
-        let (minus, zeta) = if members.len() == 2 {
-            let minus = if members[0].eval.action.re >= members[1].eval.action.re {
-                0
-            } else {
-                1
-            };
-            let z = ZetaBranch::start(
-                track::half_difference(&members[minus], &members[1 - minus]),
-                omega,
-            );
-            (minus, Some(z))
-        } else {
-            (0, None)
-        };
-        return Some(GroupState {
-            omega,
-            members,
-            minus,
-            zeta,
-        });
-    }
-    None
 }
