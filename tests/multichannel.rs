@@ -409,8 +409,12 @@ fn factorised_linear_field_path_equals_the_serial_per_saddle_path() {
 #[test]
 fn two_centre_interference_minimum_appears_in_the_spectrum() {
     // Lein et al., PRL 88, 183903 (2002): for a bonding pair along the field the velocity-form
-    // dipole vanishes where k R = π; with the saddle momentum k²/2 = Ω − Ip. The short
-    // trajectory of the first crest must have its minimum there within 2% in photon energy.
+    // dipole vanishes where k R = π; with the saddle momentum k²/2 = Ω − Ip. With the structure
+    // in the prefactor (evaluated at the plain saddle) the short trajectory of the first crest
+    // must have its minimum there within 2% in photon energy. With the structure in the phase
+    // (the default) each centre recombines at its own saddle — its centre factor e^{±ik·R/2}
+    // shifts the stationary return time by about (E·R/2)/(v·E) ≈ 1 a.u. here — and the minimum
+    // moves by a few per cent (measured +2.2%); it must stay within 4%.
     let field = field();
     let mut spec = load("demo-diatomic-minimum.json");
     spec.orientations = Some(OrientationSpec::Fixed {
@@ -421,30 +425,37 @@ fn two_centre_interference_minimum_appears_in_the_spectrum() {
     let energies: Vec<f64> = (0..=240)
         .map(|k| (18.0 + 0.05 * f64::from(k)) * w)
         .collect();
-    let settings = MultichannelSettings {
-        group_delay_step: None,
-        ..MultichannelSettings::default()
-    };
-    let s = run(&target, &field, &energies, &settings);
-    let fam = s.pairs[0]
-        .families
-        .iter()
-        .find(|c| c.half_cycle == 0 && c.label.branch == holecast::orbits::Branch::Short)
-        .unwrap();
-    let (k_min, _) = fam
-        .dipole
-        .iter()
-        .enumerate()
-        .map(|(k, d)| (k, d.map_or(f64::INFINITY, |d| d.norm())))
-        .min_by(|a, b| a.1.total_cmp(&b.1))
-        .unwrap();
     let r = 2.4;
     let expected = target.channels[0].ip + 0.5 * (std::f64::consts::PI / r).powi(2);
-    let found = energies[k_min];
-    assert!(
-        (found / expected - 1.0).abs() < 0.02,
-        "minimum at {found}, expected {expected}"
-    );
+    for (placement, tolerance) in [
+        (StructurePlacement::Prefactor, 0.02),
+        (StructurePlacement::Auto, 0.04),
+    ] {
+        let settings = MultichannelSettings {
+            group_delay_step: None,
+            ionization_structure: placement,
+            recombination_structure: placement,
+            ..MultichannelSettings::default()
+        };
+        let s = run(&target, &field, &energies, &settings);
+        let fam = s.pairs[0]
+            .families
+            .iter()
+            .find(|c| c.half_cycle == 0 && c.label.branch == holecast::orbits::Branch::Short)
+            .unwrap();
+        let (k_min, _) = fam
+            .dipole
+            .iter()
+            .enumerate()
+            .map(|(k, d)| (k, d.map_or(f64::INFINITY, |d| d.norm())))
+            .min_by(|a, b| a.1.total_cmp(&b.1))
+            .unwrap();
+        let found = energies[k_min];
+        assert!(
+            (found / expected - 1.0).abs() < tolerance,
+            "{placement:?}: minimum at {found}, expected {expected}"
+        );
+    }
 }
 
 #[test]

@@ -133,6 +133,9 @@ pub enum StructureArg {
     Phase,
     /// In the prefactor, evaluated at the saddle.
     Prefactor,
+    /// Recombination side: in the phase where the ionization side of the pair is too (measured
+    /// best, docs/validation.md), else in the prefactor. Ionization side: as `phase`.
+    Auto,
 }
 
 /// How the quadrature does the drift-momentum integral.
@@ -156,7 +159,7 @@ pub struct ModelArgs {
     pub ionization_structure: StructureArg,
     /// Saddle method: Gaussian recombination structure (gaussian, lcao models) in the phase or
     /// in the prefactor.
-    #[arg(long, value_enum, default_value_t = StructureArg::Prefactor)]
+    #[arg(long, value_enum, default_value_t = StructureArg::Auto)]
     pub recombination_structure: StructureArg,
 }
 

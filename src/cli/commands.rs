@@ -473,6 +473,7 @@ fn placement(arg: StructureArg) -> StructurePlacement {
     match arg {
         StructureArg::Phase => StructurePlacement::Phase,
         StructureArg::Prefactor => StructurePlacement::Prefactor,
+        StructureArg::Auto => StructurePlacement::Auto,
     }
 }
 
@@ -669,6 +670,7 @@ pub fn spectrum(args: &SpectrumArgs, quiet: bool) -> Result<()> {
             "parallel/perpendicular": "dipole components along and across the driving polarization (in its plane)",
             "ellipticity/polarization_angle_deg": "polarization state of the harmonic from the Stokes parameters of (parallel, perpendicular)",
             "incoherent_pair_sum": "sum over channel pairs of |D_pair|^2: compare with intensity to see the channel interference",
+            "recombined_<m>_share": "|ê·Σ_n D_(n→m)|² / Σ_m' |ê·Σ_n D_(n→m')|²: the share of the harmonic (along the driving polarization) emitted on recombination into channel m",
             "<ion>_to_<rec>_*": "contribution of ionization into channel <ion> and recombination into <rec>",
             "*_emission_time_fs": "Re t_r of the family's saddle, from the field crest at t = 0",
         }),

@@ -1,15 +1,12 @@
 //! The amplitude stage of a molecule: the orientation loop and the coherent sums.
 
-use std::sync::atomic::{AtomicUsize, Ordering};
-
 use nalgebra::{DMatrix, Vector3};
 use num_complex::Complex64;
-use rayon::prelude::*;
 
 use super::classes::{OrientationClass, classes};
 use super::holes::HoleAccumulator;
 use super::stage::TrajectoryStage;
-use super::terms::{ClassResult, Plan, compute_class};
+use super::terms::{ChunkResult, Plan, compute_chunk};
 use crate::dipole::{KernelKind, SaddleSum};
 use crate::error::{Error, Result};
 use crate::field::{CVec3, Field};
@@ -126,6 +123,22 @@ impl MultichannelSpectrum {
         Some((chi.tan(), 0.5 * s2.atan2(s1)))
     }
 
+    /// The share of each recombination channel in the harmonic at energy index `k`:
+    /// `|ê·Σ_n D_mn|² / Σ_m' |ê·Σ_n D_m'n|²` (which ionic state the electron recombined with,
+    /// as the emission along the driving polarization sees it; coherent over ionization
+    /// channels and orientations). None where the emission vanishes. Both the saddle path and
+    /// the quadrature give it (the quadrature has no saddle times and hence no hole density of
+    /// its own), so it is the hole-related observable they are compared on (docs/validation.md).
+    pub fn recombination_shares(&self, k: usize) -> Option<Vec<f64>> {
+        let n = self.labels.len();
+        let mut e = vec![Complex64::new(0.0, 0.0); n];
+        for p in &self.pairs {
+            e[p.rec] += project(&self.axis, &p.dipole[k]);
+        }
+        let total: f64 = e.iter().map(|x| x.norm_sqr()).sum();
+        (total > 0.0 && total.is_finite()).then(|| e.iter().map(|x| x.norm_sqr() / total).collect())
+    }
+
     /// Harmonic phases `arg(ê·D)`, None where negligible (see [`crate::spectrum::phases`]).
     pub fn phases(&self) -> Vec<Option<f64>> {
         crate::spectrum::phases(&self.total, &self.axis)
@@ -193,54 +206,43 @@ impl Accumulator {
         }
     }
 
-    fn add(&mut self, other: &Accumulator) {
-        for (a, b) in self.dipoles.iter_mut().zip(&other.dipoles) {
-            for (fa, fb) in a.iter_mut().zip(b) {
-                for (x, y) in fa.iter_mut().zip(fb) {
-                    *x += y;
-                }
-            }
-        }
-        for (a, b) in self.failed.iter_mut().zip(&other.failed) {
-            for (fa, fb) in a.iter_mut().zip(b) {
-                for (x, y) in fa.iter_mut().zip(fb) {
-                    *x |= *y;
-                }
-            }
-        }
-        self.holes.add(&other.holes);
-    }
-
-    /// Adds a class result for each of its members, rotated to the lab.
-    fn add_class(
+    /// Adds the results of a chunk of classes, each for every one of its members, rotated to
+    /// the lab (in class order, members in list order).
+    fn add_chunk(
         &mut self,
         plan: &Plan<'_>,
-        class: &OrientationClass,
+        classes: &[OrientationClass],
         list: &[Orientation],
-        result: &ClassResult,
+        result: &ChunkResult,
     ) {
-        for &o in &class.members {
-            let r = &list[o].rotation;
-            let w = Complex64::new(list[o].weight, 0.0);
-            for (a, b) in self.dipoles.iter_mut().zip(&result.dipoles) {
-                for (fa, fb) in a.iter_mut().zip(b) {
-                    for (x, y) in fa.iter_mut().zip(fb) {
-                        *x += rotate(r, y) * w;
+        for (c, class) in classes.iter().enumerate() {
+            for &o in &class.members {
+                let r = &list[o].rotation;
+                let w = Complex64::new(list[o].weight, 0.0);
+                for (a, b) in self.dipoles.iter_mut().zip(&result.dipoles[c]) {
+                    for (fa, fb) in a.iter_mut().zip(b) {
+                        for (x, y) in fa.iter_mut().zip(fb) {
+                            *x += rotate(r, y) * w;
+                        }
                     }
                 }
             }
-        }
-        for (a, b) in self.failed.iter_mut().zip(&result.failed) {
-            for (fa, fb) in a.iter_mut().zip(b) {
-                for (x, y) in fa.iter_mut().zip(fb) {
-                    *x |= *y;
+            for (a, b) in self.failed.iter_mut().zip(&result.failed[c]) {
+                for (fa, fb) in a.iter_mut().zip(b) {
+                    for (x, y) in fa.iter_mut().zip(fb) {
+                        *x |= *y;
+                    }
                 }
             }
+            self.holes
+                .add_class(&plan.holes, &result.holes[c], class.weight);
         }
-        self.holes
-            .add_class(&plan.holes, &result.holes, class.weight);
     }
 }
+
+/// Classes computed together (their hole propagators and structured saddles are shared within
+/// a chunk; memory grows with the chunk).
+const CHUNK_CLASSES: usize = 32;
 
 /// Assembles the orientation-averaged multichannel spectrum (classes in parallel;
 /// `progress` is called with the number of orientations done).
@@ -255,26 +257,16 @@ pub fn assemble(
     let list = orientations(target, field)?;
     let groups = classes(&list, stage.linear_axis);
     let total = list.len();
-    let chunk = groups.len().div_ceil(8).max(1);
-    let done = AtomicUsize::new(0);
-    let partial: Vec<Result<Accumulator>> = groups
-        .par_chunks(chunk)
-        .map(|cs| {
-            let mut acc = Accumulator::new(&plan);
-            for c in cs {
-                let result = compute_class(&plan, &c.rotation)?;
-                acc.add_class(&plan, c, &list, &result);
-                progress(
-                    done.fetch_add(c.members.len(), Ordering::Relaxed) + c.members.len(),
-                    total,
-                );
-            }
-            Ok(acc)
-        })
-        .collect();
+    let mut done = 0;
     let mut acc = Accumulator::new(&plan);
-    for p in partial {
-        acc.add(&p?);
+    // Chunks in order; inside a chunk the channel pairs run in parallel, each into its own
+    // storage, so the sums do not depend on the number of threads.
+    for chunk in groups.chunks(CHUNK_CLASSES) {
+        let rotations: Vec<_> = chunk.iter().map(|c| c.rotation).collect();
+        let result = compute_chunk(&plan, &rotations)?;
+        acc.add_chunk(&plan, chunk, &list, &result);
+        done += chunk.iter().map(|c| c.members.len()).sum::<usize>();
+        progress(done, total);
     }
     finish(&plan, acc, total)
 }
@@ -296,8 +288,8 @@ pub fn assemble_serial(
             members: vec![i],
             weight: o.weight,
         };
-        let result = compute_class(&plan, &o.rotation)?;
-        acc.add_class(&plan, &class, &list, &result);
+        let result = compute_chunk(&plan, &[o.rotation])?;
+        acc.add_chunk(&plan, std::slice::from_ref(&class), &list, &result);
     }
     finish(&plan, acc, list.len())
 }

@@ -179,16 +179,6 @@ impl HoleAccumulator {
         }
     }
 
-    pub fn add(&mut self, other: &HoleAccumulator) {
-        for (a, b) in self.sums.iter_mut().zip(&other.sums) {
-            for (x, y) in a.iter_mut().zip(b) {
-                for (u, v) in x.iter_mut().zip(y) {
-                    *u += v;
-                }
-            }
-        }
-    }
-
     /// Adds the amplitudes of one class with total weight `weight`.
     pub fn add_class(
         &mut self,

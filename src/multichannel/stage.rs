@@ -14,9 +14,11 @@ use crate::momentum::GaussianSide;
 use crate::orbits::{ChannelPair, OrbitSettings, OrbitTable, families, solve_orbits_seeded};
 use crate::target::Target;
 
-/// The Gaussian structure of one channel that goes into the phase: the shells of its
+/// The Gaussian structure of one channel that may go into the phase: the shells of its
 /// ionization and recombination sides (molecular frame), or None for a side that stays in the
-/// prefactor (by choice, or because its model has no Gaussian form).
+/// prefactor (by choice, or because its model has no Gaussian form). With
+/// [`StructurePlacement::Auto`] a pair uses its recombination shells only when its ionizing
+/// channel's shells are in the phase too ([`TrajectoryStage::recombination_side`]).
 #[derive(Clone, Debug, Default)]
 pub struct ChannelStructure {
     /// Ionization side in the phase.
@@ -66,8 +68,11 @@ pub struct TrajectoryStage {
     pub epsilon: f64,
     /// Where the hole propagator is evaluated.
     pub contour: HoleContour,
-    /// Per channel, the Gaussian structure in the phase.
+    /// Per channel, the Gaussian structure that may go into the phase.
     pub structure: Vec<ChannelStructure>,
+    /// Whether a pair's recombination shells go into the phase only when its ionization side
+    /// does ([`StructurePlacement::Auto`]).
+    pub recombination_with_ionization: bool,
     /// Trajectory-stage settings (for the saddles with structure in the phase).
     pub orbit_settings: OrbitSettings,
     /// Classical seeds of the field (shared by every saddle problem).
@@ -78,6 +83,15 @@ impl TrajectoryStage {
     /// Index into the grid of requested energy `k`.
     pub fn central(&self, k: usize) -> usize {
         k * self.stride + self.stride / 2
+    }
+
+    /// The recombination shells of the pair `ion → rec` in the phase, if any (module rule of
+    /// [`StructurePlacement::Auto`]).
+    pub fn recombination_side(&self, ion: usize, rec: usize) -> Option<&GaussianSide> {
+        if self.recombination_with_ionization && self.structure[ion].ion.is_none() {
+            return None;
+        }
+        self.structure[rec].rec.as_ref()
     }
 
     /// The pair stage of `(ion, rec)`, if that pair is coupled.
@@ -201,11 +215,15 @@ pub fn trajectory_stage(
         .iter()
         .map(|c| ChannelStructure {
             ion: match settings.ionization_structure {
-                StructurePlacement::Phase => GaussianSide::ionization(&c.ionization),
+                StructurePlacement::Phase | StructurePlacement::Auto => {
+                    GaussianSide::ionization(&c.ionization)
+                }
                 StructurePlacement::Prefactor => None,
             },
             rec: match settings.recombination_structure {
-                StructurePlacement::Phase => GaussianSide::recombination(&c.recombination),
+                StructurePlacement::Phase | StructurePlacement::Auto => {
+                    GaussianSide::recombination(&c.recombination)
+                }
                 StructurePlacement::Prefactor => None,
             },
         })
@@ -264,6 +282,7 @@ pub fn trajectory_stage(
         epsilon: settings.epsilon,
         contour: settings.hole_contour,
         structure,
+        recombination_with_ionization: settings.recombination_structure == StructurePlacement::Auto,
         orbit_settings: settings.orbits,
         seeds,
     })

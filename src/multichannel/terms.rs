@@ -1,11 +1,24 @@
-//! One orientation class in the molecular frame: every channel pair's saddle terms (plain, or one
+//! Orientation classes in the molecular frame: every channel pair's saddle terms (plain, or one
 //! per pair of shells with Gaussian structure in the phase), their hole propagators and
 //! structure prefactors.
+//!
+//! Work is shared between classes wherever the physics allows:
+//! - **hole propagators** depend on the orientation only through the coupling to the field,
+//!   `E(t)·μ_lab`; classes with the same rotated dipole matrices (for a linear field along ê,
+//!   the same `Σ_b (Rᵀê)_b μ_b`) share one propagator and its tracks;
+//! - **saddles with structure in the phase** depend on the orientation only through the
+//!   shells' lab-frame centres, and for a linear field only through `ê·C_i`, `ê·C_r` and
+//!   `|C_i − C_r|²` (the transverse part of the shift of the stationary momentum,
+//!   `−i(C_i − C_r)_⊥/(iτ + w)`, is added back per class: it moves no saddle); one table per
+//!   distinct key;
+//! - **prefactors** are evaluated per class.
 
 use std::sync::Arc;
 
 use nalgebra::{Matrix3, Vector3};
 use num_complex::Complex64;
+
+use rayon::prelude::*;
 
 use super::holes::HoleContext;
 use super::stage::{PairStage, TrajectoryStage};
@@ -153,14 +166,14 @@ impl<'a> Plan<'a> {
     }
 }
 
-/// The molecular-frame result of one class (without the orientation weights).
-pub(super) struct ClassResult {
-    /// `[pair][family][grid point]`.
-    pub dipoles: Vec<Vec<Vec<CVec3>>>,
-    /// `[pair][family][grid point]`: a saddle with structure in the phase failed there.
-    pub failed: Vec<Vec<Vec<bool>>>,
-    /// Hole amplitudes `c` at recombination per reference family and requested energy.
-    pub holes: Vec<Vec<Option<Vec<Complex64>>>>,
+/// The molecular-frame result of a chunk of classes (without the orientation weights).
+pub(super) struct ChunkResult {
+    /// `[class][pair][family][grid point]`.
+    pub dipoles: Vec<Vec<Vec<Vec<CVec3>>>>,
+    /// `[class][pair][family][grid point]`: a saddle with structure in the phase failed there.
+    pub failed: Vec<Vec<Vec<Vec<bool>>>>,
+    /// `[class]`: hole amplitudes `c` at recombination per reference family and energy.
+    pub holes: Vec<Vec<Vec<Option<Vec<Complex64>>>>>,
 }
 
 /// Which shells of a pair a term belongs to (indices into the sides' shell lists).
@@ -172,70 +185,39 @@ enum Shells {
     Phase(Option<usize>, Option<usize>),
 }
 
-/// One sum of saddle contributions of a pair.
-struct Term {
-    table: Arc<OrbitTable>,
-    kernels: Kernels,
-    shells: Shells,
-}
-
-/// The hole propagators of one class.
-struct Holes<'a> {
-    real: Option<&'a HolePropagator>,
+/// The hole propagators of one hole class.
+struct HoleClass<'a> {
+    real: &'a HolePropagator,
     complex: Option<ComplexHole<'a>>,
 }
 
-impl Holes<'_> {
-    /// `[U_I(t_r, t_i)]` for every point of a family (None where no saddle), as a track.
-    fn along(&self, plan: &Plan<'_>, table: &OrbitTable, f: usize) -> Result<Option<HoleTrack>> {
-        let Some(complex) = &self.complex else {
-            return Ok(None);
-        };
-        let pts = &table.families[f].points;
-        let times: Vec<Option<(Complex64, Complex64)>> = pts
-            .iter()
-            .map(|p| p.saddle().map(|s| (s.t_ret, s.t_ion)))
-            .collect();
-        let err = |e: crate::hole::HoleError| Error::Numerical(format!("hole propagator: {e}"));
-        if plan.direct_holes {
-            let n = plan.target.channels.len();
-            let mut out = Vec::new();
-            for t in &times {
-                match t {
-                    Some((tr, ti)) => {
-                        let m = complex.matrix(*tr, *ti).map_err(err)?;
-                        out.push(Some(m));
-                    }
-                    None => out.push(None),
-                }
+/// Bits of the field coupling of an orientation: the rotated dipoles that enter `E·μ_lab`
+/// (for a linear field only `Σ_b (Rᵀê)_b μ_b`).
+fn hole_key(target: &Target, r: &Matrix3<f64>, linear: Option<Vector3<f64>>) -> Vec<u64> {
+    let mu = target.ion.dipole();
+    let n = target.channels.len();
+    let mut key = Vec::new();
+    let mut push = |w: [f64; 3]| {
+        for i in 0..n {
+            for j in 0..n {
+                let v = mu[0][(i, j)] * w[0] + mu[1][(i, j)] * w[1] + mu[2][(i, j)] * w[2];
+                key.push((v.re + 0.0).to_bits());
+                key.push((v.im + 0.0).to_bits());
             }
-            return Ok(Some(HoleTrack::from_matrices(n, &out)));
         }
-        let mut order: Vec<usize> = (0..times.len()).collect();
-        order.sort_by(|&a, &b| table.energies[a].total_cmp(&table.energies[b]));
-        complex.track(&times, &order).map(Some).map_err(err)
-    }
-
-    /// `[U_I]_mn` at a saddle: from the complex track if there is one, else at the real parts
-    /// of the times (the shortcut), else δ_mn (no propagation needed).
-    fn element(
-        &self,
-        track: Option<&HoleTrack>,
-        i: usize,
-        m: usize,
-        n: usize,
-        s: &Saddle,
-    ) -> Complex64 {
-        if let Some(t) = track {
-            return t.element(i, m, n);
+    };
+    match linear {
+        Some(axis) => {
+            let e = r.transpose() * axis;
+            push([e.x, e.y, e.z]);
         }
-        match self.real {
-            Some(p) => p
-                .element(m, n, s.t_ret.re, s.t_ion.re)
-                .unwrap_or(Complex64::new(f64::NAN, f64::NAN)),
-            None => Complex64::new(if m == n { 1.0 } else { 0.0 }, 0.0),
+        None => {
+            for a in 0..3 {
+                push([r[(a, 0)], r[(a, 1)], r[(a, 2)]]);
+            }
         }
     }
+    key
 }
 
 /// The lab-frame Gaussian term of a shell for a class with rotation `r`.
@@ -246,53 +228,27 @@ fn lab_term(shell: &GaussianShell, r: &Matrix3<f64>) -> GaussianTerm {
     }
 }
 
-/// The terms of pair `pair` for a class with rotation `r`.
-fn terms(plan: &Plan<'_>, pair: &PairStage, r: &Matrix3<f64>) -> Result<Vec<Term>> {
-    let stage = plan.stage;
-    let ion_side = stage.structure[pair.ion].ion.as_ref();
-    let rec_side = stage.structure[pair.rec].rec.as_ref();
-    if ion_side.is_none() && rec_side.is_none() {
-        return Ok(vec![Term {
-            table: pair.table.clone(),
-            kernels: pair.kernels.clone(),
-            shells: Shells::Plain,
-        }]);
-    }
-    let ion_list: Vec<Option<usize>> = match ion_side {
-        Some(s) => (0..s.shells.len()).map(Some).collect(),
-        None => vec![None],
-    };
-    let rec_list: Vec<Option<usize>> = match rec_side {
-        Some(s) => (0..s.shells.len()).map(Some).collect(),
-        None => vec![None],
-    };
-    let mut out = Vec::with_capacity(ion_list.len() * rec_list.len());
-    for &j in &ion_list {
-        for &l in &rec_list {
-            let structure = PhaseStructure {
-                ion: j.and_then(|j| ion_side.map(|s| lab_term(&s.shells[j], r))),
-                rec: l.and_then(|l| rec_side.map(|s| lab_term(&s.shells[l], r))),
-            };
-            let problem = ChannelPair {
-                structure,
-                ..pair.table.pair
-            };
-            let table = solve_orbits_seeded(
-                plan.field,
-                problem,
-                &stage.grid,
-                &stage.orbit_settings,
-                &stage.seeds,
-            )?;
-            let k = kernels(&table, stage.sum, stage.epsilon);
-            out.push(Term {
-                table: Arc::new(table),
-                kernels: k,
-                shells: Shells::Phase(j, l),
-            });
+/// The bits that decide the saddles of a structure problem (module documentation).
+fn structure_key(s: &PhaseStructure, linear: Option<Vector3<f64>>) -> Vec<u64> {
+    let zero = Vector3::zeros();
+    let (qi, ci) = s.ion.map_or((0.0, zero), |g| (g.quarter, g.centre));
+    let (qr, cr) = s.rec.map_or((0.0, zero), |g| (g.quarter, g.centre));
+    let mut key = vec![qi.to_bits(), qr.to_bits()];
+    match linear {
+        Some(axis) => {
+            key.push((axis.dot(&ci) + 0.0).to_bits());
+            key.push((axis.dot(&cr) + 0.0).to_bits());
+            key.push(((ci - cr).norm_squared() + 0.0).to_bits());
         }
+        None => key.extend(ci.iter().chain(cr.iter()).map(|x| (x + 0.0).to_bits())),
     }
-    Ok(out)
+    key
+}
+
+/// `ΔC = C_i − C_r` (lab frame) of a structure problem.
+fn centre_difference(s: &PhaseStructure) -> Vector3<f64> {
+    let zero = Vector3::zeros();
+    s.ion.map_or(zero, |g| g.centre) - s.rec.map_or(zero, |g| g.centre)
 }
 
 /// Rotates a complex lab vector to the molecular frame, `Rᵀ v`.
@@ -321,17 +277,21 @@ fn plain_prefactor(
 }
 
 /// The prefactor of a saddle whose Gaussian structure is (partly) in the phase, molecular frame.
+/// `shift` is the difference `−i(ΔC_class − ΔC_solved)/(iτ + w)` between the stationary
+/// momentum of this class and that of the class the table was solved for (lab frame).
+#[allow(clippy::too_many_arguments)]
 fn phase_prefactor(
     plan: &Plan<'_>,
     rt: &Matrix3<f64>,
     pair: &PairStage,
     s: &Saddle,
+    shift: &CVec3,
     omega: f64,
     ion: Option<(&GaussianSide, usize)>,
     rec: Option<(&GaussianSide, usize)>,
 ) -> CVec3 {
-    let k_i = to_mol(rt, &s.v_ion);
-    let k_r = to_mol(rt, &s.v_ret);
+    let k_i = to_mol(rt, &(s.v_ion + shift));
+    let k_r = to_mol(rt, &(s.v_ret + shift));
     let e_i = to_mol(rt, &s.e_ion);
     // σ² = 1/(iτ + w): the variance of the momentum about its stationary value (ε → 0).
     let sigma2 = 1.0 / (Complex64::i() * s.tau + s.width);
@@ -358,143 +318,352 @@ fn phase_prefactor(
     }
 }
 
-/// Computes one class with rotation `r`.
-pub(super) fn compute_class(plan: &Plan<'_>, r: &Matrix3<f64>) -> Result<ClassResult> {
+/// Per-class caches of the linear fast path (molecular frame).
+struct LinearCaches {
+    rec: Vec<CVec3>,
+    ion: Vec<Complex64>,
+}
+
+fn linear_caches(plan: &Plan<'_>, rt: &Matrix3<f64>) -> Option<LinearCaches> {
+    let lin = plan.linear.as_ref()?;
     let stage = plan.stage;
     let target = plan.target;
-    let rt = r.transpose();
-    let real = match &stage.samples {
-        Some(s) => Some(
-            HolePropagator::new(&target.ion, r, s)
-                .map_err(|e| Error::Numerical(format!("hole propagator: {e}")))?,
-        ),
-        None => None,
+    let axis_mol = rt * lin.axis;
+    let ax = axis_mol.map(|x| Complex64::new(x, 0.0));
+    Some(LinearCaches {
+        rec: lin
+            .rec_momenta
+            .iter()
+            .map(|&(m, i, k)| {
+                target.channels[m]
+                    .recombination
+                    .vector(&(ax * k), stage.grid[i])
+            })
+            .collect(),
+        ion: lin
+            .ion_keys
+            .iter()
+            .map(|&(n, vs, es)| {
+                let ch = &target.channels[n];
+                ch.ionization
+                    .linear_angular(&axis_mol, vs, es, (2.0 * ch.ip).sqrt())
+            })
+            .collect(),
+    })
+}
+
+/// `[U_I(t_r, t_i)]` along every family of a table for one hole class (None where no saddle):
+/// a track per family (complex contour), or None when the real-time shortcut or no
+/// propagation applies.
+fn tracks(
+    plan: &Plan<'_>,
+    hole: Option<&HoleClass<'_>>,
+    table: &OrbitTable,
+) -> Result<Vec<Option<HoleTrack>>> {
+    let Some(complex) = hole.and_then(|h| h.complex.as_ref()) else {
+        return Ok(vec![None; table.families.len()]);
     };
-    let complex = match (&real, stage.contour) {
-        (Some(p), HoleContour::Complex) => Some(
-            ComplexHole::new(&target.ion, r, plan.field, p)
-                .map_err(|e| Error::Numerical(format!("hole propagator: {e}")))?,
-        ),
-        _ => None,
-    };
-    let holes = Holes {
-        real: real.as_ref(),
-        complex,
-    };
-    // Per-class caches of the linear fast path (molecular frame).
-    let (rec_cache, ion_cache): (Vec<CVec3>, Vec<Complex64>) = match &plan.linear {
-        Some(lin) => {
-            let axis_mol = rt * lin.axis;
-            let ax = axis_mol.map(|x| Complex64::new(x, 0.0));
-            let rec = lin
-                .rec_momenta
+    let err = |e: crate::hole::HoleError| Error::Numerical(format!("hole propagator: {e}"));
+    let n = plan.target.channels.len();
+    let mut order: Vec<usize> = (0..table.energies.len()).collect();
+    order.sort_by(|&a, &b| table.energies[a].total_cmp(&table.energies[b]));
+    table
+        .families
+        .iter()
+        .map(|family| {
+            let times: Vec<Option<(Complex64, Complex64)>> = family
+                .points
                 .iter()
-                .map(|&(m, i, k)| {
-                    target.channels[m]
-                        .recombination
-                        .vector(&(ax * k), stage.grid[i])
-                })
+                .map(|p| p.saddle().map(|s| (s.t_ret, s.t_ion)))
                 .collect();
-            let ion = lin
-                .ion_keys
-                .iter()
-                .map(|&(n, vs, es)| {
-                    let ch = &target.channels[n];
-                    ch.ionization
-                        .linear_angular(&axis_mol, vs, es, (2.0 * ch.ip).sqrt())
-                })
-                .collect();
-            (rec, ion)
-        }
-        None => (Vec::new(), Vec::new()),
-    };
+            if plan.direct_holes {
+                let mut out = Vec::with_capacity(times.len());
+                for t in &times {
+                    out.push(match t {
+                        Some((tr, ti)) => Some(complex.matrix(*tr, *ti).map_err(err)?),
+                        None => None,
+                    });
+                }
+                Ok(Some(HoleTrack::from_matrices(n, &out)))
+            } else {
+                complex.track(&times, &order).map(Some).map_err(err)
+            }
+        })
+        .collect()
+}
+
+/// `[U_I]_mn` at a saddle: from the complex track if there is one, else at the real parts of the
+/// times (the shortcut), else δ_mn (no propagation needed).
+fn hole_element(
+    hole: Option<&HoleClass<'_>>,
+    track: Option<&HoleTrack>,
+    i: usize,
+    m: usize,
+    n: usize,
+    s: &Saddle,
+) -> Complex64 {
+    if let Some(t) = track {
+        return t.element(i, m, n);
+    }
+    match hole {
+        Some(h) => h
+            .real
+            .element(m, n, s.t_ret.re, s.t_ion.re)
+            .unwrap_or(Complex64::new(f64::NAN, f64::NAN)),
+        None => Complex64::new(if m == n { 1.0 } else { 0.0 }, 0.0),
+    }
+}
+
+/// One channel pair for every class of a chunk: `([class][family][grid], failed flags)`.
+#[allow(clippy::type_complexity)]
+fn pair_chunk(
+    plan: &Plan<'_>,
+    p: usize,
+    rotations: &[Matrix3<f64>],
+    hole_of: &[Option<usize>],
+    holes: &[HoleClass<'_>],
+    caches: &[Option<LinearCaches>],
+) -> Result<(Vec<Vec<Vec<CVec3>>>, Vec<Vec<Vec<bool>>>)> {
+    let stage = plan.stage;
+    let pair = &stage.pairs[p];
+    let nf = pair.table.families.len();
     let ng = stage.grid.len();
-    let mut dipoles = Vec::with_capacity(stage.pairs.len());
-    let mut failed = Vec::with_capacity(stage.pairs.len());
-    for (p, pair) in stage.pairs.iter().enumerate() {
-        let nf = pair.table.families.len();
-        let mut dip = vec![vec![CVec3::zeros(); ng]; nf];
-        let mut fail = vec![vec![false; ng]; nf];
-        for term in terms(plan, pair, r)? {
-            for f in 0..nf {
-                let family = &term.table.families[f];
-                let track = holes.along(plan, &term.table, f)?;
-                for (i, point) in family.points.iter().enumerate() {
-                    let Some(s) = point.saddle() else {
-                        if point.is_failure() && !matches!(term.shells, Shells::Plain) {
-                            fail[f][i] = true;
-                        }
-                        continue;
+    let nc = rotations.len();
+    let mut dip = vec![vec![vec![CVec3::zeros(); ng]; nf]; nc];
+    let mut fail = vec![vec![vec![false; ng]; nf]; nc];
+    let ion_side = stage.structure[pair.ion].ion.as_ref();
+    let rec_side = stage.recombination_side(pair.ion, pair.rec);
+    let shells: Vec<Shells> = if ion_side.is_none() && rec_side.is_none() {
+        vec![Shells::Plain]
+    } else {
+        let ion_list: Vec<Option<usize>> = match ion_side {
+            Some(s) => (0..s.shells.len()).map(Some).collect(),
+            None => vec![None],
+        };
+        let rec_list: Vec<Option<usize>> = match rec_side {
+            Some(s) => (0..s.shells.len()).map(Some).collect(),
+            None => vec![None],
+        };
+        ion_list
+            .iter()
+            .flat_map(|&j| rec_list.iter().map(move |&l| Shells::Phase(j, l)))
+            .collect()
+    };
+    for term in shells {
+        // The structure problem of every class, grouped by its key (first appearance order).
+        let problems: Vec<PhaseStructure> = rotations
+            .iter()
+            .map(|r| match term {
+                Shells::Plain => PhaseStructure::default(),
+                Shells::Phase(j, l) => PhaseStructure {
+                    ion: j.and_then(|j| ion_side.map(|s| lab_term(&s.shells[j], r))),
+                    rec: l.and_then(|l| rec_side.map(|s| lab_term(&s.shells[l], r))),
+                },
+            })
+            .collect();
+        let mut groups: Vec<(Vec<u64>, Vec<usize>)> = Vec::new();
+        for (c, prob) in problems.iter().enumerate() {
+            let key = structure_key(prob, stage.linear_axis);
+            match groups.iter_mut().find(|g| g.0 == key) {
+                Some(g) => g.1.push(c),
+                None => groups.push((key, vec![c])),
+            }
+        }
+        for (_, members) in groups {
+            let solved = &problems[members[0]];
+            let (table, kern): (Arc<OrbitTable>, Kernels) = match term {
+                Shells::Plain => (pair.table.clone(), pair.kernels.clone()),
+                Shells::Phase(..) => {
+                    let problem = ChannelPair {
+                        structure: *solved,
+                        ..pair.table.pair
                     };
-                    let kernel = term.kernels.values[f][i];
-                    if kernel.kind == KernelKind::Failed || kernel.value == Complex64::new(0.0, 0.0)
-                    {
-                        continue;
-                    }
-                    let u = holes.element(track.as_ref(), i, pair.rec, pair.ion, s);
-                    let omega = stage.grid[i];
-                    let pre = match term.shells {
-                        Shells::Plain => match &plan.linear {
-                            Some(lin) => match lin.saddles[p][f][i] {
-                                Some(ls) => {
-                                    rec_cache[ls.rec_slot] * (ion_cache[ls.ion_slot] * ls.scalar)
+                    let t = solve_orbits_seeded(
+                        plan.field,
+                        problem,
+                        &stage.grid,
+                        &stage.orbit_settings,
+                        &stage.seeds,
+                    )?;
+                    let k = kernels(&t, stage.sum, stage.epsilon);
+                    (Arc::new(t), k)
+                }
+            };
+            let solved_dc = centre_difference(solved);
+            // Hole classes among the members, in order of first appearance.
+            let mut hole_groups: Vec<(Option<usize>, Vec<usize>)> = Vec::new();
+            for &c in &members {
+                match hole_groups.iter_mut().find(|g| g.0 == hole_of[c]) {
+                    Some(g) => g.1.push(c),
+                    None => hole_groups.push((hole_of[c], vec![c])),
+                }
+            }
+            for (h, classes) in hole_groups {
+                let hole = h.map(|h| &holes[h]);
+                let family_tracks = tracks(plan, hole, &table)?;
+                for &c in &classes {
+                    let r = &rotations[c];
+                    let rt = r.transpose();
+                    let dc = centre_difference(&problems[c]) - solved_dc;
+                    let dc = dc.map(|x| Complex64::new(x, 0.0));
+                    for f in 0..nf {
+                        let family = &table.families[f];
+                        let track = family_tracks[f].as_ref();
+                        for (i, point) in family.points.iter().enumerate() {
+                            let Some(s) = point.saddle() else {
+                                if point.is_failure() && !matches!(term, Shells::Plain) {
+                                    fail[c][f][i] = true;
                                 }
-                                None => continue,
-                            },
-                            None => plain_prefactor(plan, &rt, pair, s, omega),
-                        },
-                        Shells::Phase(j, l) => {
-                            let is = stage.structure[pair.ion].ion.as_ref();
-                            let rs = stage.structure[pair.rec].rec.as_ref();
-                            phase_prefactor(
-                                plan,
-                                &rt,
-                                pair,
-                                s,
-                                omega,
-                                j.and_then(|j| is.map(|x| (x, j))),
-                                l.and_then(|l| rs.map(|x| (x, l))),
-                            )
+                                continue;
+                            };
+                            let kernel = kern.values[f][i];
+                            if kernel.kind == KernelKind::Failed
+                                || kernel.value == Complex64::new(0.0, 0.0)
+                            {
+                                continue;
+                            }
+                            let u = hole_element(hole, track, i, pair.rec, pair.ion, s);
+                            let omega = stage.grid[i];
+                            let pre = match term {
+                                Shells::Plain => match (&plan.linear, &caches[c]) {
+                                    (Some(lin), Some(cache)) => match lin.saddles[p][f][i] {
+                                        Some(ls) => {
+                                            cache.rec[ls.rec_slot]
+                                                * (cache.ion[ls.ion_slot] * ls.scalar)
+                                        }
+                                        None => continue,
+                                    },
+                                    _ => plain_prefactor(plan, &rt, pair, s, omega),
+                                },
+                                Shells::Phase(j, l) => {
+                                    // μ_class − μ_solved = −i(ΔC_class − ΔC_solved)/(iτ + w).
+                                    let shift = dc
+                                        * (Complex64::new(0.0, -1.0)
+                                            / (Complex64::i() * s.tau + s.width));
+                                    phase_prefactor(
+                                        plan,
+                                        &rt,
+                                        pair,
+                                        s,
+                                        &shift,
+                                        omega,
+                                        j.and_then(|j| ion_side.map(|x| (x, j))),
+                                        l.and_then(|l| rec_side.map(|x| (x, l))),
+                                    )
+                                }
+                            };
+                            dip[c][f][i] += pre * (kernel.value * u);
                         }
-                    };
-                    dip[f][i] += pre * (kernel.value * u);
+                    }
                 }
             }
         }
-        dipoles.push(dip);
-        failed.push(fail);
     }
-    // Hole amplitudes decoded by each harmonic of the reference channel.
-    let ionization = |p: usize, f: usize, i: usize| -> Complex64 {
-        let pair = &stage.pairs[p];
-        if let Some(lin) = &plan.linear {
-            return match lin.saddles[p][f][i] {
-                Some(ls) => ion_cache[ls.ion_slot] * ls.scalar,
-                None => Complex64::new(0.0, 0.0),
+    Ok((dip, fail))
+}
+
+/// Computes a chunk of classes (rotations `rotations`) in the molecular frame.
+pub(super) fn compute_chunk(plan: &Plan<'_>, rotations: &[Matrix3<f64>]) -> Result<ChunkResult> {
+    let stage = plan.stage;
+    let target = plan.target;
+    let nc = rotations.len();
+    // Hole classes: one propagator per distinct field coupling.
+    let mut hole_of: Vec<Option<usize>> = vec![None; nc];
+    let mut hole_rotations: Vec<Matrix3<f64>> = Vec::new();
+    if stage.samples.is_some() {
+        let mut keys: Vec<Vec<u64>> = Vec::new();
+        for (c, r) in rotations.iter().enumerate() {
+            let key = hole_key(target, r, stage.linear_axis);
+            let h = match keys.iter().position(|k| *k == key) {
+                Some(h) => h,
+                None => {
+                    keys.push(key);
+                    hole_rotations.push(*r);
+                    keys.len() - 1
+                }
             };
+            hole_of[c] = Some(h);
         }
-        match pair.table.families[f].points[i].saddle() {
-            Some(s) => target.channels[pair.ion].ionization.factor(
-                &to_mol(&rt, &s.v_ion),
-                &to_mol(&rt, &s.e_ion),
-                &(rt * s.e_exit),
-            ),
-            None => Complex64::new(0.0, 0.0),
-        }
-    };
-    let hole_tracks: Vec<Option<HoleTrack>> = match plan.holes.reference_pair() {
-        Some(pr) => {
-            let table = &stage.pairs[pr].table;
-            (0..table.families.len())
-                .map(|f| holes.along(plan, table, f))
-                .collect::<Result<_>>()?
-        }
+    }
+    let reals: Vec<HolePropagator> = match &stage.samples {
+        Some(samples) => hole_rotations
+            .par_iter()
+            .map(|r| {
+                HolePropagator::new(&target.ion, r, samples)
+                    .map_err(|e| Error::Numerical(format!("hole propagator: {e}")))
+            })
+            .collect::<Result<_>>()?,
         None => Vec::new(),
     };
-    let hole_amplitudes = plan.holes.amplitudes(&ionization, &|f, i, m, n, s| {
-        holes.element(hole_tracks.get(f).and_then(|t| t.as_ref()), i, m, n, s)
-    });
-    Ok(ClassResult {
+    let holes: Vec<HoleClass<'_>> = reals
+        .iter()
+        .zip(&hole_rotations)
+        .map(|(real, r)| {
+            let complex = match stage.contour {
+                HoleContour::Complex => Some(
+                    ComplexHole::new(&target.ion, r, plan.field, real)
+                        .map_err(|e| Error::Numerical(format!("hole propagator: {e}")))?,
+                ),
+                HoleContour::Real => None,
+            };
+            Ok(HoleClass { real, complex })
+        })
+        .collect::<Result<_>>()?;
+    let caches: Vec<Option<LinearCaches>> = rotations
+        .iter()
+        .map(|r| linear_caches(plan, &r.transpose()))
+        .collect();
+    let per_pair: Vec<Result<_>> = (0..stage.pairs.len())
+        .into_par_iter()
+        .map(|p| pair_chunk(plan, p, rotations, &hole_of, &holes, &caches))
+        .collect();
+    let mut dipoles = vec![Vec::with_capacity(stage.pairs.len()); nc];
+    let mut failed = vec![Vec::with_capacity(stage.pairs.len()); nc];
+    for r in per_pair {
+        let (d, f) = r?;
+        for (c, (dc, fc)) in d.into_iter().zip(f).enumerate() {
+            dipoles[c].push(dc);
+            failed[c].push(fc);
+        }
+    }
+    // Hole amplitudes decoded by each harmonic of the reference channel: the full propagator
+    // along the reference families, once per hole class.
+    let reference_tracks: Vec<Vec<Option<HoleTrack>>> = match plan.holes.reference_pair() {
+        Some(pr) => holes
+            .iter()
+            .map(|h| tracks(plan, Some(h), &stage.pairs[pr].table))
+            .collect::<Result<_>>()?,
+        None => Vec::new(),
+    };
+    let hole_amplitudes = (0..nc)
+        .map(|c| {
+            let rt = rotations[c].transpose();
+            let hole = hole_of[c].map(|h| &holes[h]);
+            let ref_tracks = hole_of[c].and_then(|h| reference_tracks.get(h));
+            let ionization = |p: usize, f: usize, i: usize| -> Complex64 {
+                let pair = &stage.pairs[p];
+                if let (Some(lin), Some(cache)) = (&plan.linear, &caches[c]) {
+                    return match lin.saddles[p][f][i] {
+                        Some(ls) => cache.ion[ls.ion_slot] * ls.scalar,
+                        None => Complex64::new(0.0, 0.0),
+                    };
+                }
+                match pair.table.families[f].points[i].saddle() {
+                    Some(s) => target.channels[pair.ion].ionization.factor(
+                        &to_mol(&rt, &s.v_ion),
+                        &to_mol(&rt, &s.e_ion),
+                        &(rt * s.e_exit),
+                    ),
+                    None => Complex64::new(0.0, 0.0),
+                }
+            };
+            plan.holes.amplitudes(&ionization, &|f, i, m, n, s| {
+                let track = ref_tracks.and_then(|t| t.get(f)).and_then(|t| t.as_ref());
+                hole_element(hole, track, i, m, n, s)
+            })
+        })
+        .collect();
+    Ok(ChunkResult {
         dipoles,
         failed,
         holes: hole_amplitudes,

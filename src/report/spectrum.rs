@@ -90,6 +90,15 @@ pub fn rows(s: &MultichannelSpectrum) -> Result<Table, String> {
                 "incoherent_pair_sum",
                 Some(s.pairs.iter().map(|p| norm2(&p.dipole[k])).sum()),
             );
+        let shares = s.recombination_shares(k);
+        if s.labels.len() > 1 {
+            for (m, label) in s.labels.iter().enumerate() {
+                r.real(
+                    format!("recombined_{label}_share"),
+                    shares.as_ref().map(|v| v[m]),
+                );
+            }
+        }
         for (label, v) in &labels {
             r.real(format!("{label}_intensity"), v[k].map(|d| norm2(&d)));
         }
