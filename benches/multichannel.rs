@@ -1,5 +1,6 @@
 //! Speed of the multichannel path: three channels (nine pairs), plateau at Δq = 0.1, full 3D
-//! orientation grid of 192 orientations. `scripts/bench_figures.py` prints the figures.
+//! orientation grid of 192 orientations; and the two-channel bent triatomic on its own
+//! 192-orientation grid with structure in the phase. `scripts/bench_figures.py` prints the figures.
 
 use std::hint::black_box;
 
@@ -63,6 +64,28 @@ fn benches(c: &mut Criterion) {
             })
         });
     }
+    // The bent triatomic on its own 192-orientation grid: orbital ionization and lcao
+    // recombination (structure in the phase by default), two coupled channels.
+    let path = concat!(
+        env!("CARGO_MANIFEST_DIR"),
+        "/channels/demo-bent-triatomic.json"
+    );
+    let bent = TargetSpec::from_json(&std::fs::read_to_string(path).unwrap())
+        .unwrap()
+        .validate()
+        .unwrap();
+    let settings = MultichannelSettings::default();
+    group.bench_function("whole_spectrum_bent_triatomic_192_orientations", |b| {
+        b.iter(|| {
+            let stage = trajectory_stage(&field, &bent, &energies, &settings).unwrap();
+            black_box(
+                assemble(&field, &bent, &stage, true, &|_, _| {})
+                    .unwrap()
+                    .total
+                    .len(),
+            )
+        })
+    });
     group.finish();
 }
 

@@ -58,6 +58,8 @@ def main():
         show(f"  trajectory stage ({name.replace('_', ' ')})", f"multichannel/trajectory_stage_9_pairs_{name}")
         show(f"  orientation loop ({name.replace('_', ' ')})", f"multichannel/assemble_192_orientations_{name}")
         show(f"  whole spectrum ({name.replace('_', ' ')})", f"multichannel/whole_spectrum_{name}")
+    show("bent triatomic (2 channels, structure in the phase), 192 orientations, whole spectrum",
+         "multichannel/whole_spectrum_bent_triatomic_192_orientations")
     print("\nsaddle path against quadrature, same work (benches/quadrature.rs)\n")
     pairs = [
         ("hydrogen, 800 nm, H11–H41 (31 lines)", "quadrature/saddle_hydrogen_800nm_H11_H41",

@@ -7,9 +7,11 @@ Usage: python3 scripts/validation_report.py [--bin PATH] [--quick]
 For every target and laser case the script runs
 
     holecast spectrum TARGET --intensity I --wavelength L --method saddle       (defaults: uniform
-                                       sum, hole at the complex saddle times, structure in the phase)
+                sum, hole at the complex saddle times with its next-order terms, structure in the phase)
     holecast spectrum TARGET ... --method saddle --ionization-structure prefactor
                                   --recombination-structure prefactor        (structure at the saddle)
+    holecast spectrum TARGET ... --method saddle --hole-expansion leading    (coupled targets only:
+                                                                              hole at the saddle only)
     holecast spectrum TARGET ... --method saddle --hole-times real           (coupled targets only:
                                                                               hole frozen under the barrier)
     holecast spectrum TARGET --intensity I --wavelength L --method quadrature   (0.03 T < τ < 0.97 T,
@@ -96,6 +98,7 @@ TARGETS = [
 ]
 PREFACTOR = ["--ionization-structure", "prefactor", "--recombination-structure", "prefactor"]
 FROZEN = ["--hole-times", "real"]
+LEADING = ["--hole-expansion", "leading"]
 WAVELENGTHS = [800.0, 1200.0]
 INTENSITIES = [1e14, 2e14, 3e14]
 SHORT_WINDOW = ["--excursion-cycles", "0.75", "--window-fall-cycles", "0.25"]
@@ -466,10 +469,12 @@ def tables(results, versions):
     lines.append("")
     lines.append("Each cell: plateau rms Δlog₁₀ I (decades) / Δ cutoff (orders) / max \\|Δt_e\\| (as). "
                  "*prefactor*: `--ionization-structure prefactor --recombination-structure prefactor`; "
+                 "*hole at leading order*: `--hole-expansion leading`; "
                  "*frozen hole*: `--hole-times real` (coupled targets).")
     lines.append("")
-    lines.append("| target | λ (nm) | I (W/cm²) | default | structure in the prefactor | frozen hole |")
-    lines.append("|---|---|---|---|---|---|")
+    lines.append("| target | λ (nm) | I (W/cm²) | default | structure in the prefactor | "
+                 "hole at leading order | frozen hole |")
+    lines.append("|---|---|---|---|---|---|---|")
 
     def cell(a):
         if a is None:
@@ -480,7 +485,8 @@ def tables(results, versions):
     for r in results:
         v = r.get("variants", {})
         lines.append(f"| {r['target']} | {r['wavelength_nm']:.0f} | {r['intensity_wcm2']:.0e} | "
-                     f"{cell(r['analysis'])} | {cell(v.get('prefactor'))} | {cell(v.get('frozen'))} |")
+                     f"{cell(r['analysis'])} | {cell(v.get('prefactor'))} | {cell(v.get('leading'))} | "
+                     f"{cell(v.get('frozen'))} |")
     lines.append("")
     lines.append("Figures: `docs/validation/spectra.svg` (log₁₀ |D|² of both paths), "
                  "`docs/validation/emission_times.svg` (short-orbit emission times of both paths).")
@@ -517,7 +523,8 @@ def main():
                 ip_ev = min(c["ip_ev"] for c in saddle["channels"])
                 a = analyse(label, saddle, quad, short, saddle["photon_ev"], ip_ev, saddle["up_ev"])
                 variants = {}
-                for name, extra in [("prefactor", PREFACTOR)] + ([("frozen", FROZEN)] if coupled else []):
+                for name, extra in [("prefactor", PREFACTOR)] + (
+                        [("leading", LEADING), ("frozen", FROZEN)] if coupled else []):
                     v, _, _ = run(bin_path, target, intensity, wavelength, "saddle", extra, work)
                     variants[name] = analyse(label, v, quad, short, saddle["photon_ev"], ip_ev,
                                              saddle["up_ev"])

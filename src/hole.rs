@@ -99,7 +99,7 @@ mod propagator;
 mod samples;
 mod small;
 
-pub use complex::{COMPLEX_STEP_PHASE, ComplexHole, HoleContour, HoleTrack};
+pub use complex::{COMPLEX_STEP_PHASE, ComplexHole, ElementDerivatives, HoleContour, HoleTrack};
 pub use error::HoleError;
 pub use grid::GridTime;
 pub use ion::{HERMITICITY_TOLERANCE, IonModel, MAX_CHANNELS};

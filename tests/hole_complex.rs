@@ -217,3 +217,41 @@ fn on_the_real_axis_the_continuation_is_the_real_time_propagator() {
         assert!(max_rel(&u, &r) < 1e-13, "{t2}, {t1}");
     }
 }
+
+#[test]
+fn element_derivatives_match_finite_differences_at_complex_times() {
+    // ∂U/∂t₂ = −iV_I(t₂)U, ∂U/∂t₁ = iUV_I(t₁) and their second derivatives (derived from the
+    // equation of motion) against central differences of the directly evaluated propagator.
+    let case = &reference().cases[4];
+    let b = build(case, (-20.0, 160.0));
+    let hole = ComplexHole::new(&b.ion, &Matrix3::identity(), &b.field, &b.prop).unwrap();
+    let (t2, t1) = (c(60.0, -0.8), c(8.0, 13.0));
+    let track = hole.track(&[Some((t2, t1))], &[0]).unwrap();
+    let h = 1e-3;
+    let u = |a: Complex64, b: Complex64| hole.matrix(a, b).unwrap();
+    for (m, n) in [(0, 0), (1, 0), (2, 1), (0, 2)] {
+        let d = hole.derivatives(&track, 0, m, n, t2, t1);
+        let e = |x: DMatrix<Complex64>| x[(m, n)];
+        let f2 = (e(u(t2 + h, t1)) - e(u(t2 - h, t1))) / (2.0 * h);
+        let f1 = (e(u(t2, t1 + h)) - e(u(t2, t1 - h))) / (2.0 * h);
+        let f22 = (e(u(t2 + h, t1)) - 2.0 * e(u(t2, t1)) + e(u(t2 - h, t1))) / (h * h);
+        let f11 = (e(u(t2, t1 + h)) - 2.0 * e(u(t2, t1)) + e(u(t2, t1 - h))) / (h * h);
+        let f21 = (e(u(t2 + h, t1 + h)) - e(u(t2 + h, t1 - h)) - e(u(t2 - h, t1 + h))
+            + e(u(t2 - h, t1 - h)))
+            / (4.0 * h * h);
+        let scale = d.value.norm().max(1e-3);
+        for (what, a, b) in [
+            ("value", d.value, e(u(t2, t1))),
+            ("∂t₂", d.first[0], f2),
+            ("∂t₁", d.first[1], f1),
+            ("∂²t₂", d.second[0][0], f22),
+            ("∂²t₁", d.second[1][1], f11),
+            ("∂t₂∂t₁", d.second[0][1], f21),
+        ] {
+            assert!(
+                (a - b).norm() < 1e-5 * scale.max(b.norm()),
+                "({m},{n}) {what}: {a} vs {b}"
+            );
+        }
+    }
+}

@@ -126,6 +126,16 @@ pub enum HoleTimesArg {
     Real,
 }
 
+/// Saddle-point order of the hole propagator.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum HoleExpansionArg {
+    /// `U_I` at the saddle plus its next-order terms across the saddle (default; with
+    /// `--hole-times complex`).
+    NextOrder,
+    /// `U_I` at the saddle only (the plain saddle-point treatment; for comparison).
+    Leading,
+}
+
 /// Where a side's Gaussian structure factors go.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
 pub enum StructureArg {
@@ -153,6 +163,10 @@ pub struct ModelArgs {
     /// Saddle method: where the hole propagator is evaluated.
     #[arg(long, value_enum, default_value_t = HoleTimesArg::Complex)]
     pub hole_times: HoleTimesArg,
+    /// Saddle method: the hole propagator at the saddle only, or with its next-order terms
+    /// (its variation across the saddle).
+    #[arg(long, value_enum, default_value_t = HoleExpansionArg::NextOrder)]
+    pub hole_expansion: HoleExpansionArg,
     /// Saddle method: Gaussian ionization structure (gaussian, orbital models) in the phase or
     /// in the prefactor.
     #[arg(long, value_enum, default_value_t = StructureArg::Phase)]

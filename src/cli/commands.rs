@@ -13,8 +13,8 @@ use holecast::dipole::SaddleSum;
 use holecast::field::{Field, TimeStructure};
 use holecast::laser::LaserSpec;
 use holecast::multichannel::{
-    HoleContour, MultichannelSettings, MultichannelSpectrum, StructurePlacement, assemble,
-    coupling_components, trajectory_stage,
+    HoleContour, HoleExpansion, MultichannelSettings, MultichannelSpectrum, StructurePlacement,
+    assemble, coupling_components, trajectory_stage,
 };
 use holecast::orbits::{ChannelPair, OrbitSettings};
 use holecast::report::{self, orbits::LabelledTable, svg::Marker};
@@ -22,8 +22,8 @@ use holecast::target::{Channel, OrientationGridSpec, Target};
 use holecast::units;
 
 use super::args::{
-    CheckArgs, Format, GridArgs, HoleTimesArg, HolesArgs, LaserArgs, MethodArg, ModelArgs,
-    MomentumArg, OrbitsArgs, SpectrumArgs, StructureArg, SumArg, TargetArgs,
+    CheckArgs, Format, GridArgs, HoleExpansionArg, HoleTimesArg, HolesArgs, LaserArgs, MethodArg,
+    ModelArgs, MomentumArg, OrbitsArgs, SpectrumArgs, StructureArg, SumArg, TargetArgs,
 };
 use super::output::{write_all_atomic, write_atomic};
 use super::settings::{self, LoadedTarget};
@@ -505,6 +505,10 @@ fn run(
         },
         ionization_structure: placement(model.ionization_structure),
         recombination_structure: placement(model.recombination_structure),
+        hole_expansion: match model.hole_expansion {
+            HoleExpansionArg::NextOrder => HoleExpansion::NextOrder,
+            HoleExpansionArg::Leading => HoleExpansion::Leading,
+        },
         ..MultichannelSettings::default()
     };
     let t = &target.target;
@@ -545,6 +549,11 @@ fn run(
             "hole_times_note": match settings.hole_contour {
                 HoleContour::Complex => "hole propagator U_I(t_r, t_i) at the complex saddle times (the hole moves during tunnelling)",
                 HoleContour::Real => "hole propagator U_I(Re t_r, Re t_i): hole frozen under the barrier (shortcut)",
+            },
+            "hole_expansion": settings.hole_expansion,
+            "hole_expansion_note": match (settings.hole_contour, settings.hole_expansion) {
+                (HoleContour::Complex, HoleExpansion::NextOrder) => "U_I with its next-order saddle-point terms (curvature across the saddle, slope against the skew of the phase, the spreading factor and the structure prefactor); off near caustics",
+                _ => "U_I at the saddle only (leading order)",
             },
             "ionization_structure": settings.ionization_structure,
             "recombination_structure": settings.recombination_structure,

@@ -183,6 +183,20 @@ impl<'a> ComplexHole<'a> {
         Ok(track.matrix(0))
     }
 
+    /// Derivatives of `[U_I(t₂, t₁)]_mn` with respect to the two times at entry `k` of a track
+    /// made by this propagator at the times `(t₂, t₁)` of that entry.
+    pub fn derivatives(
+        &self,
+        track: &HoleTrack,
+        k: usize,
+        m: usize,
+        n: usize,
+        t2: Complex64,
+        t1: Complex64,
+    ) -> ElementDerivatives {
+        self.inner.derivatives(track, k, m, n, t2, t1)
+    }
+
     /// `U_I(t₂ᵏ, t₁ᵏ)` for every entry `k` of `times` (None: no saddle there), visiting the
     /// entries in the sequence `order` (a permutation of the indices, e.g. by increasing photon
     /// energy): each entry is reached from the previous one along a straight segment, the first
@@ -205,6 +219,29 @@ trait Continuation {
         times: &[Option<(Complex64, Complex64)>],
         order: &[usize],
     ) -> Result<HoleTrack, HoleError>;
+
+    fn derivatives(
+        &self,
+        u: &HoleTrack,
+        k: usize,
+        m: usize,
+        n: usize,
+        t2: Complex64,
+        t1: Complex64,
+    ) -> ElementDerivatives;
+}
+
+/// `[U_I(t₂, t₁)]_mn` and its first and second derivatives with respect to the two times, from
+/// `∂U/∂t₂ = −iV_I(t₂)U`, `∂U/∂t₁ = iU V_I(t₁)` (so `∂²U/∂t₂² = (−iV̇_I(t₂) − V_I(t₂)²)U`,
+/// `∂²U/∂t₁² = U(iV̇_I(t₁) − V_I(t₁)²)`, `∂²U/∂t₂∂t₁ = V_I(t₂) U V_I(t₁)`), all at complex times.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct ElementDerivatives {
+    /// `U_mn`.
+    pub value: Complex64,
+    /// `[∂U_mn/∂t₂, ∂U_mn/∂t₁]`.
+    pub first: [Complex64; 2],
+    /// `[[∂²/∂t₂², ∂²/∂t₂∂t₁], [∂²/∂t₁∂t₂, ∂²/∂t₁²]]` of `U_mn`.
+    pub second: [[Complex64; 2]; 2],
 }
 
 /// The generator of one orientation with its real-axis propagator.
@@ -460,7 +497,86 @@ impl<'a, const N: usize> Generator<'a, N> {
     }
 }
 
+impl<const N: usize> Generator<'_, N> {
+    /// `V_I(t)` and `dV_I/dt` at complex `t`: `V_I,mn = (V − E(t)·μ)_mn e^{i(Ip_m − Ip_n)t}`.
+    fn interaction(&self, t: Complex64) -> (Mat<N>, Mat<N>) {
+        let (e, de) = self.field.electric_and_rate(t);
+        let mut v = self.statics;
+        for i in 0..N {
+            v[i][i] -= Complex64::new(self.shifted[i], 0.0);
+        }
+        let mut dv = zero::<N>();
+        for &a in &self.active {
+            for i in 0..N {
+                for j in 0..N {
+                    v[i][j] -= self.dipole[a][i][j] * e[a];
+                    dv[i][j] -= self.dipole[a][i][j] * de[a];
+                }
+            }
+        }
+        let phase: [Complex64; N] =
+            std::array::from_fn(|m| (Complex64::i() * self.shifted[m] * t).exp());
+        for i in 0..N {
+            for j in 0..N {
+                let p = phase[i] / phase[j];
+                let bohr = Complex64::new(0.0, self.shifted[i] - self.shifted[j]);
+                v[i][j] *= p;
+                dv[i][j] = dv[i][j] * p + bohr * v[i][j];
+            }
+        }
+        (v, dv)
+    }
+}
+
 impl<const N: usize> Continuation for Generator<'_, N> {
+    fn derivatives(
+        &self,
+        u: &HoleTrack,
+        k: usize,
+        m: usize,
+        n: usize,
+        t2: Complex64,
+        t1: Complex64,
+    ) -> ElementDerivatives {
+        let i = Complex64::i();
+        let um: Mat<N> = std::array::from_fn(|r| std::array::from_fn(|c| u.element(k, r, c)));
+        let (v2, dv2) = self.interaction(t2);
+        let (v1, dv1) = self.interaction(t1);
+        // Row m of V₂, V₂² and V̇₂; column n of V₁, V₁² and V̇₁.
+        let row = |a: &Mat<N>| -> [Complex64; N] { a[m] };
+        let col = |a: &Mat<N>| -> [Complex64; N] { std::array::from_fn(|r| a[r][n]) };
+        let v2sq = mul(&v2, &v2);
+        let v1sq = mul(&v1, &v1);
+        // (x U y)_mn for a row x (of the left factor) and a column y (of the right factor).
+        let sandwich = |x: &[Complex64; N], y: &[Complex64; N]| -> Complex64 {
+            let mut s = Complex64::new(0.0, 0.0);
+            for a in 0..N {
+                if x[a] == Complex64::new(0.0, 0.0) {
+                    continue;
+                }
+                for b in 0..N {
+                    s += x[a] * um[a][b] * y[b];
+                }
+            }
+            s
+        };
+        let unit_row: [Complex64; N] =
+            std::array::from_fn(|a| Complex64::new(f64::from(u8::from(a == m)), 0.0));
+        let unit_col: [Complex64; N] =
+            std::array::from_fn(|a| Complex64::new(f64::from(u8::from(a == n)), 0.0));
+        let value = um[m][n];
+        let d2 = -i * sandwich(&row(&v2), &unit_col);
+        let d1 = i * sandwich(&unit_row, &col(&v1));
+        let rr = sandwich(&row(&dv2), &unit_col) * (-i) - sandwich(&row(&v2sq), &unit_col);
+        let ii = sandwich(&unit_row, &col(&dv1)) * i - sandwich(&unit_row, &col(&v1sq));
+        let ri = sandwich(&row(&v2), &col(&v1));
+        ElementDerivatives {
+            value,
+            first: [d2, d1],
+            second: [[rr, ri], [ri, ii]],
+        }
+    }
+
     fn track(
         &self,
         times: &[Option<(Complex64, Complex64)>],

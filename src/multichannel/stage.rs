@@ -68,6 +68,8 @@ pub struct TrajectoryStage {
     pub epsilon: f64,
     /// Where the hole propagator is evaluated.
     pub contour: HoleContour,
+    /// Saddle-point order of the hole propagator.
+    pub hole_expansion: super::HoleExpansion,
     /// Per channel, the Gaussian structure that may go into the phase.
     pub structure: Vec<ChannelStructure>,
     /// Whether a pair's recombination shells go into the phase only when its ionization side
@@ -281,6 +283,7 @@ pub fn trajectory_stage(
         sum: settings.sum,
         epsilon: settings.epsilon,
         contour: settings.hole_contour,
+        hole_expansion: settings.hole_expansion,
         structure,
         recombination_with_ionization: settings.recombination_structure == StructurePlacement::Auto,
         orbit_settings: settings.orbits,

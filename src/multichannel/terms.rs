@@ -20,6 +20,7 @@ use num_complex::Complex64;
 
 use rayon::prelude::*;
 
+use super::HoleExpansion;
 use super::holes::HoleContext;
 use super::stage::{PairStage, TrajectoryStage};
 use crate::dipole::{KernelKind, Kernels, kernels};
@@ -29,6 +30,9 @@ use crate::hole::{ComplexHole, HoleContour, HolePropagator, HoleTrack};
 use crate::momentum::{
     GaussianShell, GaussianSide, ion_shell_prefactor, rec_shell_prefactor, rotate,
     shell_pair_prefactor,
+};
+use crate::orbits::expansion::{
+    Neighbour, STEP, SaddleExpansion, caustic_weight, spreading_log_gradient,
 };
 use crate::orbits::{
     ChannelPair, GaussianTerm, OrbitTable, PhaseStructure, Saddle, solve_orbits_seeded,
@@ -414,6 +418,114 @@ fn hole_element(
     }
 }
 
+/// The next-order expansion of one saddle, its caustic weight and its neighbours.
+struct Local {
+    expansion: SaddleExpansion,
+    weight: f64,
+    neighbours: [Neighbour; 4],
+}
+
+/// The next-order expansion of every summed saddle of a table (`[family][grid point]`; None
+/// where no saddle is summed or the caustic weight is zero).
+fn expansions(plan: &Plan<'_>, table: &OrbitTable, kern: &Kernels) -> Vec<Vec<Option<Local>>> {
+    table
+        .families
+        .iter()
+        .enumerate()
+        .map(|(f, family)| {
+            family
+                .points
+                .iter()
+                .enumerate()
+                .map(|(i, point)| {
+                    let s = point.saddle()?;
+                    let kernel = kern.values[f][i];
+                    if kernel.kind == KernelKind::Failed || kernel.value == Complex64::new(0.0, 0.0)
+                    {
+                        return None;
+                    }
+                    // A partner without an Airy variable here: no way to tell the distance to
+                    // the caustic, so no correction.
+                    let weight = match family.pair {
+                        None => caustic_weight(None),
+                        Some(q) => {
+                            table.pairs[q].points[i].map_or(0.0, |pp| caustic_weight(Some(pp.zeta)))
+                        }
+                    };
+                    if weight == 0.0 {
+                        return None;
+                    }
+                    let (expansion, neighbours) = SaddleExpansion::with_neighbours(
+                        plan.field,
+                        table.pair,
+                        table.energies[i],
+                        s.t_ret,
+                        s.t_ion,
+                    );
+                    Some(Local {
+                        expansion,
+                        weight,
+                        neighbours,
+                    })
+                })
+                .collect()
+        })
+        .collect()
+}
+
+/// `[U_I]_mn` of one saddle with its next-order terms, and `w Σ_a A_ab ∂_a U_mn`, the weight of
+/// the derivatives of the rest of the prefactor in the cross term.
+#[derive(Clone, Copy, Debug)]
+struct ExpandedHole {
+    value: Complex64,
+    slope: [Complex64; 2],
+}
+
+/// `[U_I]_mn` of every saddle of a table with its next-order terms
+/// ([`crate::orbits::expansion`]), from the complex-time tracks (`[family][grid point]`; None
+/// where the leading order stands).
+#[allow(clippy::too_many_arguments)]
+fn expanded_holes(
+    complex: &ComplexHole<'_>,
+    tracks: &[Option<HoleTrack>],
+    table: &OrbitTable,
+    expansions: &[Vec<Option<Local>>],
+    epsilon: f64,
+    m: usize,
+    n: usize,
+) -> Vec<Vec<Option<ExpandedHole>>> {
+    table
+        .families
+        .iter()
+        .enumerate()
+        .map(|(f, family)| {
+            family
+                .points
+                .iter()
+                .enumerate()
+                .map(|(i, point)| {
+                    let s = point.saddle()?;
+                    let local = expansions[f][i].as_ref()?;
+                    let (e, weight) = (&local.expansion, &local.weight);
+                    let track = tracks[f].as_ref()?;
+                    let d = complex.derivatives(track, i, m, n, s.t_ret, s.t_ion);
+                    let companion = spreading_log_gradient(s.tau, s.width, epsilon);
+                    let extra = e.prefactor_terms(&d.first, &d.second, &companion);
+                    let a = &e.covariance;
+                    let slope = [
+                        *weight * (a[0][0] * d.first[0] + a[1][0] * d.first[1]),
+                        *weight * (a[0][1] * d.first[0] + a[1][1] * d.first[1]),
+                    ];
+                    Some(ExpandedHole {
+                        value: d.value + *weight * extra,
+                        slope,
+                    })
+                })
+                .collect()
+        })
+        .collect()
+}
+
 /// One channel pair for every class of a chunk: `([class][family][grid], failed flags)`.
 #[allow(clippy::type_complexity)]
 fn pair_chunk(
@@ -490,6 +602,8 @@ fn pair_chunk(
                 }
             };
             let solved_dc = centre_difference(solved);
+            let next_order = stage.hole_expansion == HoleExpansion::NextOrder;
+            let mut table_expansions: Option<Vec<Vec<Option<Local>>>> = None;
             // Hole classes among the members, in order of first appearance.
             let mut hole_groups: Vec<(Option<usize>, Vec<usize>)> = Vec::new();
             for &c in &members {
@@ -501,6 +615,22 @@ fn pair_chunk(
             for (h, classes) in hole_groups {
                 let hole = h.map(|h| &holes[h]);
                 let family_tracks = tracks(plan, hole, &table)?;
+                let expanded = match hole.and_then(|h| h.complex.as_ref()) {
+                    Some(complex) if next_order => {
+                        let e =
+                            table_expansions.get_or_insert_with(|| expansions(plan, &table, &kern));
+                        Some(expanded_holes(
+                            complex,
+                            &family_tracks,
+                            &table,
+                            e,
+                            stage.epsilon,
+                            pair.rec,
+                            pair.ion,
+                        ))
+                    }
+                    _ => None,
+                };
                 for &c in &classes {
                     let r = &rotations[c];
                     let rt = r.transpose();
@@ -522,37 +652,62 @@ fn pair_chunk(
                             {
                                 continue;
                             }
-                            let u = hole_element(hole, track, i, pair.rec, pair.ion, s);
+                            let xh = expanded.as_ref().and_then(|x| x[f][i]);
+                            let u = match xh {
+                                Some(u) => u.value,
+                                None => hole_element(hole, track, i, pair.rec, pair.ion, s),
+                            };
                             let omega = stage.grid[i];
-                            let pre = match term {
-                                Shells::Plain => match (&plan.linear, &caches[c]) {
-                                    (Some(lin), Some(cache)) => match lin.saddles[p][f][i] {
-                                        Some(ls) => {
+                            // The structure prefactor of this class at saddle `q` (the
+                            // factorised linear path only at the saddle itself).
+                            let prefactor = |q: &Saddle, at_saddle: bool| -> Option<CVec3> {
+                                Some(match term {
+                                    Shells::Plain => match (&plan.linear, &caches[c]) {
+                                        (Some(lin), Some(cache)) if at_saddle => {
+                                            let ls = lin.saddles[p][f][i]?;
                                             cache.rec[ls.rec_slot]
                                                 * (cache.ion[ls.ion_slot] * ls.scalar)
                                         }
-                                        None => continue,
+                                        _ => plain_prefactor(plan, &rt, pair, q, omega),
                                     },
-                                    _ => plain_prefactor(plan, &rt, pair, s, omega),
-                                },
-                                Shells::Phase(j, l) => {
-                                    // μ_class − μ_solved = −i(ΔC_class − ΔC_solved)/(iτ + w).
-                                    let shift = dc
-                                        * (Complex64::new(0.0, -1.0)
-                                            / (Complex64::i() * s.tau + s.width));
-                                    phase_prefactor(
-                                        plan,
-                                        &rt,
-                                        pair,
-                                        s,
-                                        &shift,
-                                        omega,
-                                        j.and_then(|j| ion_side.map(|x| (x, j))),
-                                        l.and_then(|l| rec_side.map(|x| (x, l))),
-                                    )
-                                }
+                                    Shells::Phase(j, l) => {
+                                        // μ_class − μ_solved = −i(ΔC_class − ΔC_solved)/(iτ + w).
+                                        let shift = dc
+                                            * (Complex64::new(0.0, -1.0)
+                                                / (Complex64::i() * q.tau + q.width));
+                                        phase_prefactor(
+                                            plan,
+                                            &rt,
+                                            pair,
+                                            q,
+                                            &shift,
+                                            omega,
+                                            j.and_then(|j| ion_side.map(|x| (x, j))),
+                                            l.and_then(|l| rec_side.map(|x| (x, l))),
+                                        )
+                                    }
+                                })
                             };
-                            dip[c][f][i] += pre * (kernel.value * u);
+                            let Some(pre) = prefactor(s, true) else {
+                                continue;
+                            };
+                            let mut term_value = pre * u;
+                            // The cross term of the hole's slope with the structure's:
+                            // Σ_ab w A_ab ∂_a U ∂_b P, ∂_b P by central differences.
+                            if let (Some(xh), Some(local)) =
+                                (xh, table_expansions.as_ref().and_then(|e| e[f][i].as_ref()))
+                            {
+                                let nb = local.neighbours.map(|n| n.saddle(s));
+                                let at = |k: usize| prefactor(&nb[k], false);
+                                if let (Some(rp), Some(rm), Some(ip), Some(im)) =
+                                    (at(0), at(1), at(2), at(3))
+                                {
+                                    let d = Complex64::new(0.5 / STEP, 0.0);
+                                    term_value +=
+                                        ((rp - rm) * xh.slope[0] + (ip - im) * xh.slope[1]) * d;
+                                }
+                            }
+                            dip[c][f][i] += term_value * kernel.value;
                         }
                     }
                 }

@@ -6,6 +6,7 @@
 //! saddle points).
 //!
 //! - [`equations`]: the problem (saddle equations, analytic Jacobian and Hessian);
+//! - [`expansion`]: the next-order saddle-point terms of a prefactor that varies across a saddle;
 //! - [`newton`]: the solver of one point;
 //! - [`families`]: classical seeds and family labels;
 //! - [`start`]: the first converged pair of each half cycle (classical seeds, the coalescence
@@ -36,6 +37,7 @@ mod branches;
 pub mod budget;
 pub mod coalescence;
 pub mod equations;
+pub mod expansion;
 pub mod families;
 pub mod newton;
 pub mod start;
