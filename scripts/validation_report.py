@@ -393,8 +393,8 @@ def tables(results, versions):
     lines.append("Produced by `python3 scripts/validation_report.py` with " + ", ".join(
         f"{k} {v}" for k, v in versions.items()) + ".")
     lines.append("")
-    lines.append("Saddle path with its defaults (uniform sum, hole at the complex saddle times, Gaussian "
-                 "structure in the phase); quadrature with the exact momentum integral and the hole "
+    lines.append("Saddle path with its defaults (uniform sum, hole at the complex saddle times with its "
+                 "next-order terms, Gaussian structure in the phase); quadrature with the exact momentum integral and the hole "
                  "propagated in real time.")
     lines.append("")
     lines.append("### Plateau and cutoff")

@@ -3,7 +3,7 @@
 //! phase itself.
 
 use holecast::laser::LaserSpec;
-use holecast::orbits::expansion::{SaddleExpansion, caustic_weight, spreading_log_gradient};
+use holecast::orbits::expansion::{SaddleExpansion, near_caustic, spreading_log_gradient};
 use holecast::orbits::{ChannelPair, evaluate};
 use num_complex::Complex64;
 
@@ -168,12 +168,10 @@ fn covariance_inverts_the_phase_hessian() {
 }
 
 #[test]
-fn caustic_weight_switches_off_between_one_half_and_one() {
-    assert_eq!(caustic_weight(None), 1.0);
-    assert_eq!(caustic_weight(Some(Complex64::new(0.3, 0.3))), 0.0);
-    assert_eq!(caustic_weight(Some(Complex64::new(-1.5, 0.0))), 1.0);
-    let mid = caustic_weight(Some(Complex64::new(0.0, 0.75)));
-    assert!((mid - 0.5).abs() < 1e-12);
+fn the_caustic_zone_is_the_unit_disc_of_zeta() {
+    assert!(near_caustic(Complex64::new(0.6, 0.6)));
+    assert!(!near_caustic(Complex64::new(-0.8, 0.7)));
+    assert!(!near_caustic(Complex64::new(2.0, 0.0)));
 }
 
 #[test]

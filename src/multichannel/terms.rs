@@ -12,6 +12,17 @@
 //!   `−i(C_i − C_r)_⊥/(iτ + w)`, is added back per class: it moves no saddle); one table per
 //!   distinct key;
 //! - **prefactors** are evaluated per class.
+//!
+//! **The hole propagator beyond leading order** ([`super::HoleExpansion::NextOrder`]). Each
+//! saddle's `U_I` gets its next-order terms and the cross term of its slope with the structure
+//! prefactor's ([`crate::orbits::expansion`]; the prefactor differentiated by central
+//! differences per class). In the zone about a pair's caustic (`|ζ| < 1`) the expansion fails;
+//! there each family's contribution is its leading-order value times the ratio
+//! next-order/leading-order bridged linearly in Ω from the nearest points outside the zone on
+//! either side ([`bridge`]). The bridge is a measured choice, not an asymptotic result: near the
+//! cutoffs of six coupled cases it brings the spectrum from up to 0.35 decade off the exact
+//! quadrature (terms switched off in the zone) to within 0.13 decade (documented at
+//! [`crate::orbits::expansion::CAUSTIC_ZONE`]).
 
 use std::sync::Arc;
 
@@ -32,7 +43,7 @@ use crate::momentum::{
     shell_pair_prefactor,
 };
 use crate::orbits::expansion::{
-    Neighbour, STEP, SaddleExpansion, caustic_weight, spreading_log_gradient,
+    Neighbour, STEP, SaddleExpansion, near_caustic, spreading_log_gradient,
 };
 use crate::orbits::{
     ChannelPair, GaussianTerm, OrbitTable, PhaseStructure, Saddle, solve_orbits_seeded,
@@ -418,16 +429,34 @@ fn hole_element(
     }
 }
 
-/// The next-order expansion of one saddle, its caustic weight and its neighbours.
+/// The next-order expansion of one saddle and its neighbours.
 struct Local {
     expansion: SaddleExpansion,
-    weight: f64,
     neighbours: [Neighbour; 4],
 }
 
-/// The next-order expansion of every summed saddle of a table (`[family][grid point]`; None
-/// where no saddle is summed or the caustic weight is zero).
-fn expansions(plan: &Plan<'_>, table: &OrbitTable, kern: &Kernels) -> Vec<Vec<Option<Local>>> {
+/// What the next order does at one point of a family.
+enum Expansion {
+    /// No saddle is summed there.
+    Absent,
+    /// The saddle is near its pair's caustic: its next-order factor is bridged from the points
+    /// outside the zone ([`bridge`]).
+    Bridged,
+    /// The expansion applies.
+    Local(Box<Local>),
+}
+
+impl Expansion {
+    fn local(&self) -> Option<&Local> {
+        match self {
+            Expansion::Local(l) => Some(l),
+            _ => None,
+        }
+    }
+}
+
+/// The next-order expansion of every summed saddle of a table (`[family][grid point]`).
+fn expansions(plan: &Plan<'_>, table: &OrbitTable, kern: &Kernels) -> Vec<Vec<Expansion>> {
     table
         .families
         .iter()
@@ -438,22 +467,22 @@ fn expansions(plan: &Plan<'_>, table: &OrbitTable, kern: &Kernels) -> Vec<Vec<Op
                 .iter()
                 .enumerate()
                 .map(|(i, point)| {
-                    let s = point.saddle()?;
+                    let Some(s) = point.saddle() else {
+                        return Expansion::Absent;
+                    };
                     let kernel = kern.values[f][i];
                     if kernel.kind == KernelKind::Failed || kernel.value == Complex64::new(0.0, 0.0)
                     {
-                        return None;
+                        return Expansion::Absent;
                     }
                     // A partner without an Airy variable here: no way to tell the distance to
-                    // the caustic, so no correction.
-                    let weight = match family.pair {
-                        None => caustic_weight(None),
-                        Some(q) => {
-                            table.pairs[q].points[i].map_or(0.0, |pp| caustic_weight(Some(pp.zeta)))
-                        }
+                    // the caustic, so bridged.
+                    let near = match family.pair {
+                        None => false,
+                        Some(q) => table.pairs[q].points[i].is_none_or(|pp| near_caustic(pp.zeta)),
                     };
-                    if weight == 0.0 {
-                        return None;
+                    if near {
+                        return Expansion::Bridged;
                     }
                     let (expansion, neighbours) = SaddleExpansion::with_neighbours(
                         plan.field,
@@ -462,23 +491,72 @@ fn expansions(plan: &Plan<'_>, table: &OrbitTable, kern: &Kernels) -> Vec<Vec<Op
                         s.t_ret,
                         s.t_ion,
                     );
-                    Some(Local {
+                    Expansion::Local(Box::new(Local {
                         expansion,
-                        weight,
                         neighbours,
-                    })
+                    }))
                 })
                 .collect()
         })
         .collect()
 }
 
-/// `[U_I]_mn` of one saddle with its next-order terms, and `w Σ_a A_ab ∂_a U_mn`, the weight of
+/// `[U_I]_mn` of one saddle with its next-order terms, and `Σ_a A_ab ∂_a U_mn`, the weight of
 /// the derivatives of the rest of the prefactor in the cross term.
 #[derive(Clone, Copy, Debug)]
 struct ExpandedHole {
     value: Complex64,
     slope: [Complex64; 2],
+}
+
+/// The next-order contributions of one family near its caustic, `[U_I]` there at leading order
+/// times a factor bridged from outside the zone: `r = ⟨D₀, D₁⟩/⟨D₀, D₀⟩` (the next-order
+/// contribution `D₁` over the leading-order `D₀`, as a complex scalar) at the nearest points
+/// outside on either side in Ω, interpolated linearly in Ω (held constant from one side, 1
+/// with none). `points[i] = (D₀, Some(D₁) outside the zone | None inside)`; `energies` of the
+/// points; returns the contributions to add.
+fn bridge(energies: &[f64], points: &[Option<(CVec3, Option<CVec3>)>]) -> Vec<CVec3> {
+    let mut order: Vec<usize> = (0..points.len()).filter(|&i| points[i].is_some()).collect();
+    order.sort_by(|&a, &b| energies[a].total_cmp(&energies[b]));
+    let ratio = |i: usize| -> Option<Complex64> {
+        let (lead, next) = points[i]?;
+        let next = next?;
+        let norm: f64 = lead.iter().map(|z| z.norm_sqr()).sum();
+        let r = lead
+            .iter()
+            .zip(next.iter())
+            .map(|(a, b)| a.conj() * b)
+            .sum::<Complex64>()
+            / norm;
+        (norm > 0.0 && r.is_finite()).then_some(r)
+    };
+    let mut out = vec![CVec3::zeros(); points.len()];
+    for (pos, &i) in order.iter().enumerate() {
+        let Some((lead, next)) = points[i] else {
+            continue;
+        };
+        if let Some(next) = next {
+            out[i] = next;
+            continue;
+        }
+        let below = order[..pos]
+            .iter()
+            .rev()
+            .find_map(|&j| ratio(j).map(|r| (j, r)));
+        let above = order[pos + 1..]
+            .iter()
+            .find_map(|&j| ratio(j).map(|r| (j, r)));
+        let r = match (below, above) {
+            (Some((a, ra)), Some((b, rb))) => {
+                let x = (energies[i] - energies[a]) / (energies[b] - energies[a]);
+                ra + (rb - ra) * x
+            }
+            (Some((_, r)), None) | (None, Some((_, r))) => r,
+            (None, None) => Complex64::new(1.0, 0.0),
+        };
+        out[i] = lead * r;
+    }
+    out
 }
 
 /// `[U_I]_mn` of every saddle of a table with its next-order terms
@@ -489,7 +567,7 @@ fn expanded_holes(
     complex: &ComplexHole<'_>,
     tracks: &[Option<HoleTrack>],
     table: &OrbitTable,
-    expansions: &[Vec<Option<Local>>],
+    expansions: &[Vec<Expansion>],
     epsilon: f64,
     m: usize,
     n: usize,
@@ -505,19 +583,18 @@ fn expanded_holes(
                 .enumerate()
                 .map(|(i, point)| {
                     let s = point.saddle()?;
-                    let local = expansions[f][i].as_ref()?;
-                    let (e, weight) = (&local.expansion, &local.weight);
+                    let e = &expansions[f][i].local()?.expansion;
                     let track = tracks[f].as_ref()?;
                     let d = complex.derivatives(track, i, m, n, s.t_ret, s.t_ion);
                     let companion = spreading_log_gradient(s.tau, s.width, epsilon);
                     let extra = e.prefactor_terms(&d.first, &d.second, &companion);
                     let a = &e.covariance;
                     let slope = [
-                        *weight * (a[0][0] * d.first[0] + a[1][0] * d.first[1]),
-                        *weight * (a[0][1] * d.first[0] + a[1][1] * d.first[1]),
+                        a[0][0] * d.first[0] + a[1][0] * d.first[1],
+                        a[0][1] * d.first[0] + a[1][1] * d.first[1],
                     ];
                     Some(ExpandedHole {
-                        value: d.value + *weight * extra,
+                        value: d.value + extra,
                         slope,
                     })
                 })
@@ -603,7 +680,7 @@ fn pair_chunk(
             };
             let solved_dc = centre_difference(solved);
             let next_order = stage.hole_expansion == HoleExpansion::NextOrder;
-            let mut table_expansions: Option<Vec<Vec<Option<Local>>>> = None;
+            let mut table_expansions: Option<Vec<Vec<Expansion>>> = None;
             // Hole classes among the members, in order of first appearance.
             let mut hole_groups: Vec<(Option<usize>, Vec<usize>)> = Vec::new();
             for &c in &members {
@@ -639,6 +716,9 @@ fn pair_chunk(
                     for f in 0..nf {
                         let family = &table.families[f];
                         let track = family_tracks[f].as_ref();
+                        // With the next order: (leading, next order outside the zone) per point.
+                        let mut bridged: Vec<Option<(CVec3, Option<CVec3>)>> =
+                            vec![None; if expanded.is_some() { ng } else { 0 }];
                         for (i, point) in family.points.iter().enumerate() {
                             let Some(s) = point.saddle() else {
                                 if point.is_failure() && !matches!(term, Shells::Plain) {
@@ -653,10 +733,7 @@ fn pair_chunk(
                                 continue;
                             }
                             let xh = expanded.as_ref().and_then(|x| x[f][i]);
-                            let u = match xh {
-                                Some(u) => u.value,
-                                None => hole_element(hole, track, i, pair.rec, pair.ion, s),
-                            };
+                            let u = hole_element(hole, track, i, pair.rec, pair.ion, s);
                             let omega = stage.grid[i];
                             // The structure prefactor of this class at saddle `q` (the
                             // factorised linear path only at the saddle itself).
@@ -691,23 +768,37 @@ fn pair_chunk(
                             let Some(pre) = prefactor(s, true) else {
                                 continue;
                             };
-                            let mut term_value = pre * u;
-                            // The cross term of the hole's slope with the structure's:
-                            // Σ_ab w A_ab ∂_a U ∂_b P, ∂_b P by central differences.
-                            if let (Some(xh), Some(local)) =
-                                (xh, table_expansions.as_ref().and_then(|e| e[f][i].as_ref()))
-                            {
-                                let nb = local.neighbours.map(|n| n.saddle(s));
-                                let at = |k: usize| prefactor(&nb[k], false);
-                                if let (Some(rp), Some(rm), Some(ip), Some(im)) =
-                                    (at(0), at(1), at(2), at(3))
-                                {
-                                    let d = Complex64::new(0.5 / STEP, 0.0);
-                                    term_value +=
-                                        ((rp - rm) * xh.slope[0] + (ip - im) * xh.slope[1]) * d;
-                                }
+                            let lead = pre * (u * kernel.value);
+                            if expanded.is_none() {
+                                dip[c][f][i] += lead;
+                                continue;
                             }
-                            dip[c][f][i] += term_value * kernel.value;
+                            // The next order: U_I's own terms, and the cross term of its slope
+                            // with the structure's, Σ_ab A_ab ∂_a U ∂_b P (∂_b P by central
+                            // differences).
+                            let local = table_expansions.as_ref().and_then(|e| e[f][i].local());
+                            let next = match (xh, local) {
+                                (Some(xh), Some(local)) => {
+                                    let nb = local.neighbours.map(|n| n.saddle(s));
+                                    let at = |k: usize| prefactor(&nb[k], false);
+                                    let mut v = pre * xh.value;
+                                    if let (Some(rp), Some(rm), Some(ip), Some(im)) =
+                                        (at(0), at(1), at(2), at(3))
+                                    {
+                                        let d = Complex64::new(0.5 / STEP, 0.0);
+                                        v +=
+                                            ((rp - rm) * xh.slope[0] + (ip - im) * xh.slope[1]) * d;
+                                    }
+                                    Some(v * kernel.value)
+                                }
+                                _ => None,
+                            };
+                            bridged[i] = Some((lead, next));
+                        }
+                        if expanded.is_some() {
+                            for (d, b) in dip[c][f].iter_mut().zip(bridge(&stage.grid, &bridged)) {
+                                *d += b;
+                            }
                         }
                     }
                 }
@@ -823,4 +914,57 @@ pub(super) fn compute_chunk(plan: &Plan<'_>, rotations: &[Matrix3<f64>]) -> Resu
         failed,
         holes: hole_amplitudes,
     })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn along_x(z: Complex64) -> CVec3 {
+        CVec3::new(z, Complex64::new(0.0, 0.0), Complex64::new(0.0, 0.0))
+    }
+
+    #[test]
+    fn bridge_interpolates_the_ratio_linearly_and_keeps_points_outside() {
+        // Ratio r(Ω) = 1 + (0.2 − 0.1i)Ω outside the zone (points 0, 1, 4, 5; unsorted energies),
+        // leading-order value 2 + i everywhere: inside (points 2, 3) the bridge must give exactly
+        // the linear ratio times the leading value (common practice: linear interpolation).
+        let energies = [1.0, 2.0, 3.0, 3.5, 5.0, 4.0];
+        let r = |w: f64| Complex64::new(1.0 + 0.2 * w, -0.1 * w);
+        let lead = Complex64::new(2.0, 1.0);
+        let points: Vec<Option<(CVec3, Option<CVec3>)>> = energies
+            .iter()
+            .enumerate()
+            .map(|(i, &w)| {
+                let next = (i != 2 && i != 3).then(|| along_x(lead * r(w)));
+                Some((along_x(lead), next))
+            })
+            .collect();
+        let out = bridge(&energies, &points);
+        for (i, &w) in energies.iter().enumerate() {
+            assert!(
+                (out[i].x - lead * r(w)).norm() < 1e-14,
+                "point {i}: {}",
+                out[i].x
+            );
+        }
+    }
+
+    #[test]
+    fn bridge_holds_the_ratio_from_one_side_and_is_one_without_any() {
+        let energies = [1.0, 2.0, 3.0];
+        let lead = along_x(Complex64::new(1.0, 0.0));
+        let one_side = [
+            Some((lead, Some(lead * Complex64::new(0.5, 0.5)))),
+            Some((lead, None)),
+            None,
+        ];
+        let out = bridge(&energies, &one_side);
+        assert_eq!(out[1].x, Complex64::new(0.5, 0.5));
+        assert_eq!(out[2].x, Complex64::new(0.0, 0.0));
+        let none = [Some((lead, None)), None, Some((lead, None))];
+        let out = bridge(&energies, &none);
+        assert_eq!(out[0].x, Complex64::new(1.0, 0.0));
+        assert_eq!(out[2].x, Complex64::new(1.0, 0.0));
+    }
 }
