@@ -344,6 +344,12 @@ pub struct Target {
     pub orientations: OrientationGridSpec,
 }
 
+/// Largest ionization potential accepted (eV): a little above the most strongly bound
+/// electron of any element, the 1s electron of hydrogen-like uranium (about 132 keV; Dirac
+/// energy of Z = 92, from memory). Larger values are input errors (e.g. a unit slip), and they
+/// would make the trajectory stage's work grow like Ip/ω.
+pub const MAX_IP_EV: f64 = 2.0e5;
+
 fn valid_label(label: &str) -> bool {
     !label.is_empty()
         && label
@@ -358,6 +364,21 @@ impl TargetSpec {
         serde_json::from_str(text).map_err(|e| Error::Inconsistent(e.to_string()))
     }
 
+    /// Labels of the channels that give a `dyson_orbital` that neither of their models uses
+    /// (only the `orbital` ionization model and the `lcao` recombination model read it): the
+    /// orbital is then ignored, which a user should be told.
+    pub fn unused_orbitals(&self) -> Vec<String> {
+        self.channels
+            .iter()
+            .filter(|c| {
+                c.dyson_orbital.is_some()
+                    && !matches!(c.ionization, IonizationSpec::Orbital {})
+                    && !matches!(c.recombination, RecombinationSpec::Lcao { .. })
+            })
+            .map(|c| c.label.clone())
+            .collect()
+    }
+
     /// Checks the description and converts it to atomic units.
     pub fn validate(&self) -> Result<Target> {
         if self.channels.is_empty() {
@@ -365,6 +386,19 @@ impl TargetSpec {
                 "channels",
                 "[]",
                 "at least one channel is required",
+            ));
+        }
+        if self.channels.len() > crate::hole::MAX_CHANNELS {
+            return Err(Error::invalid(
+                "channels",
+                format!("{} channels", self.channels.len()),
+                &format!(
+                    "at most {} channels are supported: the hole propagator's kernels are \
+                     specialised per number of channels up to {} (docs/target-file.md says why \
+                     that is enough for tunnelling; keep the channels that the laser reaches)",
+                    crate::hole::MAX_CHANNELS,
+                    crate::hole::MAX_CHANNELS
+                ),
             ));
         }
         let mut channels = Vec::with_capacity(self.channels.len());
@@ -446,6 +480,16 @@ impl TargetSpec {
             ));
         }
         let ip = units::ev_to_au(require_positive(&key("ip_ev"), c.ip_ev)?);
+        if c.ip_ev > MAX_IP_EV {
+            return Err(Error::invalid(
+                &key("ip_ev"),
+                format!("{:e}", c.ip_ev),
+                &format!(
+                    "above {MAX_IP_EV:e} eV: no ionic state of any element is bound that strongly \
+                     (the 1s electron of U⁹¹⁺ is bound by about 1.32e5 eV)"
+                ),
+            ));
+        }
         let orbital = match &c.dyson_orbital {
             Some(spec) => Some(Arc::new(Orbital::from_spec(spec).map_err(|e| {
                 Error::Inconsistent(format!("{}: {e}", key("dyson_orbital")))
