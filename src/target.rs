@@ -350,6 +350,37 @@ pub struct Target {
 /// would make the trajectory stage's work grow like Ip/ω.
 pub const MAX_IP_EV: f64 = 2.0e5;
 
+/// Largest coupling dipole accepted (a.u., norm of the vector): 50 a.u. = 127 D, far above
+/// any transition or permanent dipole of a molecular ion (a few a.u.). The hole propagator's
+/// work grows like |μ|·F (measured: 0.3 s at 3 a.u., 18 s at 1000 a.u. for the bent demo).
+pub const MAX_COUPLING_DIPOLE_AU: f64 = 50.0;
+/// Largest field-free coupling energy accepted (eV, magnitude).
+pub const MAX_COUPLING_ENERGY_EV: f64 = 100.0;
+/// Largest Ip difference of two coupled channels (eV): the hole propagator's work grows with
+/// it (measured: 0.8 s at 500 eV, 17 s at 10⁴ eV for the coupled demo diatomic).
+pub const MAX_COUPLED_GAP_EV: f64 = 100.0;
+
+/// Largest distance from the origin of an atom or an orbital centre (bohr): far larger than
+/// any molecule; absurd values make the structure factors overflow.
+pub const MAX_DISTANCE_BOHR: f64 = 1.0e3;
+/// Largest Gaussian exponent (bohr⁻²): tighter than the tightest s functions of standard basis
+/// sets for heavy atoms (~10⁷); absurd values make the structure factors overflow.
+pub const MAX_EXPONENT_INV_BOHR2: f64 = 1.0e8;
+
+fn ionization_exponent(spec: &IonizationSpec) -> Option<f64> {
+    match spec {
+        IonizationSpec::Gaussian { exponent_au } => *exponent_au,
+        _ => None,
+    }
+}
+
+fn recombination_exponent(spec: &RecombinationSpec) -> Option<f64> {
+    match spec {
+        RecombinationSpec::Gaussian { exponent_au } => *exponent_au,
+        _ => None,
+    }
+}
+
 fn valid_label(label: &str) -> bool {
     !label.is_empty()
         && label
@@ -489,6 +520,51 @@ impl TargetSpec {
                      (the 1s electron of U⁹¹⁺ is bound by about 1.32e5 eV)"
                 ),
             ));
+        }
+        if let Some(spec) = &c.dyson_orbital {
+            for (t, term) in spec.terms.iter().enumerate() {
+                let at = |name: &str| key(&format!("dyson_orbital.terms[{t}].{name}"));
+                let r = term.centre_bohr.iter().map(|x| x * x).sum::<f64>().sqrt();
+                if r > MAX_DISTANCE_BOHR {
+                    return Err(Error::invalid(
+                        &at("centre_bohr"),
+                        format!("|centre| = {r:e} bohr"),
+                        &format!("must lie within {MAX_DISTANCE_BOHR} bohr of the origin"),
+                    ));
+                }
+                for (i, a) in term.exponents_inv_bohr2.iter().enumerate() {
+                    if *a > MAX_EXPONENT_INV_BOHR2 {
+                        return Err(Error::invalid(
+                            &at(&format!("exponents_inv_bohr2[{i}]")),
+                            format!("{a:e}"),
+                            &format!(
+                                "above {MAX_EXPONENT_INV_BOHR2:e} bohr⁻², tighter than any atomic \
+                                 basis function"
+                            ),
+                        ));
+                    }
+                }
+            }
+        }
+        for (model, exponent) in [
+            ("ionization.exponent_au", ionization_exponent(&c.ionization)),
+            (
+                "recombination.exponent_au",
+                recombination_exponent(&c.recombination),
+            ),
+        ] {
+            if let Some(a) = exponent
+                && a > MAX_EXPONENT_INV_BOHR2
+            {
+                return Err(Error::invalid(
+                    &key(model),
+                    format!("{a:e}"),
+                    &format!(
+                        "above {MAX_EXPONENT_INV_BOHR2:e} bohr⁻², tighter than any atomic basis \
+                         function"
+                    ),
+                ));
+            }
         }
         let orbital = match &c.dyson_orbital {
             Some(spec) => Some(Arc::new(Orbital::from_spec(spec).map_err(|e| {
@@ -644,6 +720,14 @@ impl TargetSpec {
             for (i, x) in position.iter().enumerate() {
                 require_finite(&key(&format!("position[{i}]")), *x)?;
             }
+            let r = position.iter().map(|x| x * x).sum::<f64>().sqrt();
+            if r > MAX_DISTANCE_BOHR {
+                return Err(Error::invalid(
+                    &key("position"),
+                    format!("{r:e} bohr from the origin"),
+                    &format!("must lie within {MAX_DISTANCE_BOHR} bohr of the origin"),
+                ));
+            }
             atoms.push(Atom {
                 element: a.element.clone(),
                 position: Vector3::from(position),
@@ -711,6 +795,51 @@ impl TargetSpec {
                 Some(e) => Some(e.value(&key("energy_ev"))? / units::HARTREE_EV),
                 None => None,
             };
+            if let Some(d) = dipole {
+                let norm = d.iter().map(|x| x.norm_sqr()).sum::<f64>().sqrt();
+                if norm > MAX_COUPLING_DIPOLE_AU {
+                    return Err(Error::invalid(
+                        &key(if c.dipole_au.is_some() {
+                            "dipole_au"
+                        } else {
+                            "dipole_debye"
+                        }),
+                        format!("|μ| = {norm:e} a.u."),
+                        &format!(
+                            "above {MAX_COUPLING_DIPOLE_AU} a.u. (127 D): no ionic transition or \
+                             permanent dipole is that large, and the hole propagator's work grows \
+                             with |μ|·F"
+                        ),
+                    ));
+                }
+            }
+            if let Some(e) = energy
+                && e.norm() * units::HARTREE_EV > MAX_COUPLING_ENERGY_EV
+            {
+                return Err(Error::invalid(
+                    &key("energy_ev"),
+                    format!("{:e} eV", e.norm() * units::HARTREE_EV),
+                    &format!(
+                        "above {MAX_COUPLING_ENERGY_EV} eV in magnitude: a field-free coupling \
+                         that large means the channels are not the ionic states (diagonalise \
+                         first), and the hole propagator's work grows with it"
+                    ),
+                ));
+            }
+            if a != b {
+                let gap = (channels[a].ip - channels[b].ip).abs() * units::HARTREE_EV;
+                if gap > MAX_COUPLED_GAP_EV {
+                    return Err(Error::invalid(
+                        &key("channels"),
+                        format!("{:?} ({gap:.4e} eV apart)", c.channels),
+                        &format!(
+                            "channels more than {MAX_COUPLED_GAP_EV} eV apart cannot be coupled: \
+                             the hole propagator's work grows with the gap, and the laser does \
+                             not couple states that far apart (leave the coupling out)"
+                        ),
+                    ));
+                }
+            }
             if dipole.is_none() && energy.is_none() {
                 return Err(Error::invalid(
                     &key("channels"),

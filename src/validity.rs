@@ -361,6 +361,43 @@ fn amplification_warning(field: &Field, gamma: f64) -> Option<Warning> {
     })
 }
 
+/// Largest tunnelling exponent accepted by [`check_representable`]: `e^{−700} ≈ 10⁻³⁰⁴`, the
+/// edge of double precision.
+pub const MAX_TUNNELLING_EXPONENT: f64 = 700.0;
+
+/// The PPT tunnelling exponent `(2κ³/3F) g(γ)` of a channel of ionization potential `ip` in a
+/// field of peak strength `f` and frequency `omega` (A. M. Perelomov, V. S. Popov,
+/// M. V. Terent'ev, Sov. Phys. JETP 23, 924 (1966); [`crate::tunnelling::ppt_g`]): the
+/// ionization probability is `∝ e^{−exponent}`.
+pub fn tunnelling_exponent(ip: f64, f: f64, omega: f64) -> f64 {
+    let kappa = (2.0 * ip).sqrt();
+    let gamma = omega * kappa / f;
+    let g = crate::tunnelling::ppt_g(gamma).unwrap_or(f64::INFINITY);
+    2.0 * kappa.powi(3) / (3.0 * f) * g
+}
+
+/// An error when a channel's ionization amplitude would underflow double precision: its PPT
+/// tunnelling exponent exceeds [`MAX_TUNNELLING_EXPONENT`]. No harmonic of such a channel is
+/// representable (its amplitude is below 10⁻³⁰⁴ and its products overflow or vanish), so the
+/// run is refused rather than filled with zeros or non-finite numbers.
+pub fn check_representable(field: &Field, channels: &[ChannelIp]) -> crate::Result<()> {
+    let f = scan_field(field, &[]).peak_field;
+    for c in channels {
+        let x = tunnelling_exponent(c.ip, f, field.omega());
+        if x.is_nan() || x > MAX_TUNNELLING_EXPONENT {
+            return Err(crate::Error::Inconsistent(format!(
+                "channel {} (Ip {}) in a peak field of {f:.4e} a.u.: the tunnelling exponent \
+                 (2κ³/3F)·g(γ) = {x:.4e} exceeds {MAX_TUNNELLING_EXPONENT}, so its ionization \
+                 amplitude (e^-{x:.3e}) is below what double precision holds: no harmonic of \
+                 this channel is computable (raise the intensity, or check the Ip)",
+                c.label,
+                ev(c.ip)
+            )));
+        }
+    }
+    Ok(())
+}
+
 /// Orders of a sorted list of photon energies as a range text, e.g. `H9–H11 (3 energies)`.
 fn order_range(energies: &[f64], omega: f64) -> String {
     match energies {

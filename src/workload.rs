@@ -8,10 +8,12 @@
 //! - **families** per channel pair: `2 × returns × crests` (a short and a long family per return
 //!   and birth window, [`Field::birth_windows`]); the channel pairs are those that a coupling
 //!   connects ([`crate::multichannel::coupling_components`]);
-//! - **terms**: `energies × families (all pairs) × orientations`; measured on this project's
-//!   demo targets at 3–25 µs per term on one core (`holecast spectrum` at 3001 energies:
-//!   demo-linear-triatomic 4.3 µs, demo-bent-triatomic 3.3 µs, demo-coupled-diatomic 25 µs,
-//!   trajectory stage included);
+//! - **terms**: `energies × families (all pairs) × orientations`; measured with `holecast
+//!   spectrum` on one core of the development machine, trajectory stage included: linearly
+//!   polarised fields 3–40 µs per term (3001 energies: demo-linear-triatomic 4.3 µs,
+//!   demo-bent-triatomic 3.3 µs, demo-coupled-diatomic 25 µs; eight coupled channels 39 µs),
+//!   elliptical and two-colour fields, whose orientations share less work, 50–135 µs
+//!   (demo-bent-triatomic with the shipped `lasers/*.json`);
 //! - **memory**: `energies × families × (4.5 kB + 200 B × min(orientations, 32))` — measured
 //!   peak resident memory per energy and family 4.0 kB (hydrogen, one orientation) to 10 kB
 //!   (bent triatomic, 192 orientations computed 32 classes at a time).
@@ -27,9 +29,9 @@ use crate::orbits::OrbitSettings;
 use crate::orbits::families::check_window_work;
 use crate::target::Target;
 
-/// Default limit on the terms of the amplitude stage (about 1–8 minutes on one core at the
-/// measured 3–25 µs per term).
-pub const MAX_TERMS: f64 = 2.0e7;
+/// Default limit on the terms of the amplitude stage: at most about 7 minutes on one core for a
+/// linearly polarised field (≤ 40 µs per term), 23 minutes for other fields (≤ 135 µs).
+pub const MAX_TERMS: f64 = 1.0e7;
 /// Default limit on the estimated memory (4 GB).
 pub const MAX_MEMORY_BYTES: f64 = 4.0e9;
 /// Estimated bytes per (energy, family), without the orientation chunk.
@@ -144,7 +146,11 @@ impl Workload {
                 estimated: self.terms,
                 limit: limits.terms,
                 unit: "saddle terms".into(),
-                reason: format!("{}; 3–25 µs per term on one core", self.origin()),
+                reason: format!(
+                    "{}; 3–40 µs per term on one core for a linearly polarised field, up to \
+                     135 µs for others",
+                    self.origin()
+                ),
             });
         }
         Ok(())

@@ -78,6 +78,7 @@ pub fn load(
 ) -> Result<Loaded> {
     let target = settings::target(target)?;
     let (spec, field) = settings::laser(laser)?;
+    validity::check_representable(&field, &validity::channels_of(&target.target))?;
     let mut orbit = OrbitSettings::default();
     orbit.discovery.max_returns = check_returns(returns)?;
     orbit.limits = global.limits.orbits;

@@ -27,7 +27,7 @@ pub fn install() {
         for f in files.iter() {
             let _ = std::fs::remove_file(f);
         }
-        eprintln!("interrupted: no output written (temporary files removed)");
+        eprintln!("interrupted: temporary output files removed");
         std::process::exit(i32::from(EXIT_INTERRUPTED));
     });
 }

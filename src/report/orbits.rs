@@ -94,6 +94,8 @@ pub fn rows(
                             .push("failure", Cell::Text(fl.reason.to_string()));
                     }
                 }
+                let bad = r.non_finite();
+                r.push("non_finite_columns", Cell::Text(bad.join(" ")));
                 out.add(r)?;
             }
         }
