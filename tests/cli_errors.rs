@@ -269,3 +269,20 @@ fn absurd_physical_values_are_refused_by_a_documented_rule() {
             "channels[0].ip_ev = 1e308: above 2e5 eV",
         ));
 }
+
+#[test]
+fn an_excursion_window_longer_than_the_pulse_is_refused() {
+    // Formerly: --excursion-cycles 7 with a 5 fs pulse (5.1 cycles in all) ran without comment.
+    let dir = tempfile::tempdir().unwrap();
+    holecast()
+        .args(["spectrum", "--ip", "13.6", "--method", "quadrature"])
+        .args(["--excursion-cycles", "7", "--orders", "11:31:4", "--laser"])
+        .arg(lasers("few-cycle-pulse.json"))
+        .arg("--out")
+        .arg(dir.path().join("q"))
+        .assert()
+        .code(1)
+        .stderr(predicate::str::contains(
+            "--excursion-cycles 7: the excursion window is longer than the pulse (5.15 cycles",
+        ));
+}

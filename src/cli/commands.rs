@@ -467,6 +467,20 @@ fn run(
         ),
         ..defaults
     };
+    if let (Some(q), holecast::field::TimeStructure::Pulse { start, end }) =
+        (&quadrature, field.structure())
+    {
+        let cycles = (end - start) * field.omega() / (2.0 * std::f64::consts::PI);
+        if q.excursion_cycles > cycles {
+            bail!(
+                "--excursion-cycles {}: the excursion window is longer than the pulse ({cycles:.2} \
+                 cycles of the first colour): no electron can travel that long while the field \
+                 lasts; use at most {:.2}",
+                q.excursion_cycles,
+                cycles.floor().max(0.5)
+            );
+        }
+    }
     let workload = match &quadrature {
         None => {
             let w = Workload::estimate(field, t, energies.len(), &loaded.orbit)?;
