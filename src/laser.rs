@@ -22,6 +22,12 @@ use crate::error::{Error, Result, require_finite, require_positive};
 use crate::field::{Colour, Envelope, Field, Polarization};
 use crate::units;
 
+/// Shortest driving wavelength accepted (nm): photons of 1.24 keV, far above any valence Ip.
+pub const MIN_WAVELENGTH_NM: f64 = 1.0;
+/// Longest driving wavelength accepted (nm): 1 mm (terahertz). Longer ones make the excursion
+/// and Up/ω — hence the work of the trajectory stage — grow without use.
+pub const MAX_WAVELENGTH_NM: f64 = 1.0e6;
+
 /// Polarization of one colour as written in a laser file.
 ///
 /// Every variant is a struct variant: serde's internally tagged enums let unit variants accept
@@ -150,7 +156,19 @@ impl LaserSpec {
             let key = |name: &str| format!("colours[{k}].{name}");
             let omega = match (c.wavelength_nm, c.harmonic_of_first, k) {
                 (Some(l), None, _) => {
-                    units::wavelength_nm_to_omega(require_positive(&key("wavelength_nm"), l)?)
+                    let l = require_positive(&key("wavelength_nm"), l)?;
+                    if !(MIN_WAVELENGTH_NM..=MAX_WAVELENGTH_NM).contains(&l) {
+                        return Err(Error::invalid(
+                            &key("wavelength_nm"),
+                            format!("{l:e}"),
+                            &format!(
+                                "must lie between {MIN_WAVELENGTH_NM} nm and {MAX_WAVELENGTH_NM:e} \
+                                 nm (1 mm): the quantum-orbit model is for optical and infrared \
+                                 drivers"
+                            ),
+                        ));
+                    }
+                    units::wavelength_nm_to_omega(l)
                 }
                 (None, Some(h), k) if k > 0 => {
                     omega1 * require_positive(&key("harmonic_of_first"), h)?

@@ -20,8 +20,11 @@ pub mod recombination;
 pub mod report;
 pub mod special;
 pub mod spectrum;
+pub mod status;
 pub mod target;
 pub mod tunnelling;
 pub mod units;
+pub mod validity;
+pub mod workload;
 
 pub use error::{Error, Result};

@@ -7,19 +7,32 @@ use std::process::ExitCode;
 use clap::Parser;
 
 use cli::args::{Cli, Command};
+use cli::commands::Global;
+use cli::limits::{Limits, hint};
 
 fn main() -> ExitCode {
     let cli = Cli::parse();
-    let result = match &cli.command {
-        Command::Check(a) => cli::commands::check(a),
-        Command::Orbits(a) => cli::commands::orbits(a),
-        Command::Spectrum(a) => cli::commands::spectrum(a, cli.quiet),
-        Command::Holes(a) => cli::commands::holes(a, cli.quiet),
-    };
+    cli::interrupt::install();
+    let result = Limits::new(cli.work_limit_factor, cli.max_memory_mb).and_then(|limits| {
+        let global = Global {
+            quiet: cli.quiet,
+            limits,
+            factor: cli.work_limit_factor,
+        };
+        match &cli.command {
+            Command::Check(a) => cli::check::check(a, &global),
+            Command::Orbits(a) => cli::commands::orbits(a, &global),
+            Command::Spectrum(a) => cli::commands::spectrum(a, &global),
+            Command::Holes(a) => cli::commands::holes(a, &global),
+        }
+    });
     match result {
         Ok(()) => ExitCode::SUCCESS,
         Err(e) => {
             eprintln!("error: {e:#}");
+            if let Some(h) = hint(&e, cli.work_limit_factor) {
+                eprintln!("  {h}");
+            }
             ExitCode::FAILURE
         }
     }

@@ -38,6 +38,9 @@ pub struct Contribution {
     pub group_delay: Vec<Option<f64>>,
     /// `Re t_r` of the saddle (a.u.), where solved.
     pub emission_time: Vec<Option<f64>>,
+    /// Whether the family was summed, excluded, absent or failed, per energy
+    /// ([`crate::status::FamilyStatus`]).
+    pub status: Vec<crate::status::FamilyStatus>,
 }
 
 /// Harmonic phases `arg(ê·D)` (rad) of a dipole series; `None` where `|ê·D|` is below

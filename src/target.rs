@@ -344,6 +344,43 @@ pub struct Target {
     pub orientations: OrientationGridSpec,
 }
 
+/// Largest ionization potential accepted (eV): a little above the most strongly bound
+/// electron of any element, the 1s electron of hydrogen-like uranium (about 132 keV; Dirac
+/// energy of Z = 92, from memory). Larger values are input errors (e.g. a unit slip), and they
+/// would make the trajectory stage's work grow like Ip/ω.
+pub const MAX_IP_EV: f64 = 2.0e5;
+
+/// Largest coupling dipole accepted (a.u., norm of the vector): 50 a.u. = 127 D, far above
+/// any transition or permanent dipole of a molecular ion (a few a.u.). The hole propagator's
+/// work grows like |μ|·F (measured: 0.3 s at 3 a.u., 18 s at 1000 a.u. for the bent demo).
+pub const MAX_COUPLING_DIPOLE_AU: f64 = 50.0;
+/// Largest field-free coupling energy accepted (eV, magnitude).
+pub const MAX_COUPLING_ENERGY_EV: f64 = 100.0;
+/// Largest Ip difference of two coupled channels (eV): the hole propagator's work grows with
+/// it (measured: 0.8 s at 500 eV, 17 s at 10⁴ eV for the coupled demo diatomic).
+pub const MAX_COUPLED_GAP_EV: f64 = 100.0;
+
+/// Largest distance from the origin of an atom or an orbital centre (bohr): far larger than
+/// any molecule; absurd values make the structure factors overflow.
+pub const MAX_DISTANCE_BOHR: f64 = 1.0e3;
+/// Largest Gaussian exponent (bohr⁻²): tighter than the tightest s functions of standard basis
+/// sets for heavy atoms (~10⁷); absurd values make the structure factors overflow.
+pub const MAX_EXPONENT_INV_BOHR2: f64 = 1.0e8;
+
+fn ionization_exponent(spec: &IonizationSpec) -> Option<f64> {
+    match spec {
+        IonizationSpec::Gaussian { exponent_au } => *exponent_au,
+        _ => None,
+    }
+}
+
+fn recombination_exponent(spec: &RecombinationSpec) -> Option<f64> {
+    match spec {
+        RecombinationSpec::Gaussian { exponent_au } => *exponent_au,
+        _ => None,
+    }
+}
+
 fn valid_label(label: &str) -> bool {
     !label.is_empty()
         && label
@@ -358,6 +395,21 @@ impl TargetSpec {
         serde_json::from_str(text).map_err(|e| Error::Inconsistent(e.to_string()))
     }
 
+    /// Labels of the channels that give a `dyson_orbital` that neither of their models uses
+    /// (only the `orbital` ionization model and the `lcao` recombination model read it): the
+    /// orbital is then ignored, which a user should be told.
+    pub fn unused_orbitals(&self) -> Vec<String> {
+        self.channels
+            .iter()
+            .filter(|c| {
+                c.dyson_orbital.is_some()
+                    && !matches!(c.ionization, IonizationSpec::Orbital {})
+                    && !matches!(c.recombination, RecombinationSpec::Lcao { .. })
+            })
+            .map(|c| c.label.clone())
+            .collect()
+    }
+
     /// Checks the description and converts it to atomic units.
     pub fn validate(&self) -> Result<Target> {
         if self.channels.is_empty() {
@@ -365,6 +417,19 @@ impl TargetSpec {
                 "channels",
                 "[]",
                 "at least one channel is required",
+            ));
+        }
+        if self.channels.len() > crate::hole::MAX_CHANNELS {
+            return Err(Error::invalid(
+                "channels",
+                format!("{} channels", self.channels.len()),
+                &format!(
+                    "at most {} channels are supported: the hole propagator's kernels are \
+                     specialised per number of channels up to {} (docs/target-file.md says why \
+                     that is enough for tunnelling; keep the channels that the laser reaches)",
+                    crate::hole::MAX_CHANNELS,
+                    crate::hole::MAX_CHANNELS
+                ),
             ));
         }
         let mut channels = Vec::with_capacity(self.channels.len());
@@ -446,6 +511,61 @@ impl TargetSpec {
             ));
         }
         let ip = units::ev_to_au(require_positive(&key("ip_ev"), c.ip_ev)?);
+        if c.ip_ev > MAX_IP_EV {
+            return Err(Error::invalid(
+                &key("ip_ev"),
+                format!("{:e}", c.ip_ev),
+                &format!(
+                    "above {MAX_IP_EV:e} eV: no ionic state of any element is bound that strongly \
+                     (the 1s electron of U⁹¹⁺ is bound by about 1.32e5 eV)"
+                ),
+            ));
+        }
+        if let Some(spec) = &c.dyson_orbital {
+            for (t, term) in spec.terms.iter().enumerate() {
+                let at = |name: &str| key(&format!("dyson_orbital.terms[{t}].{name}"));
+                let r = term.centre_bohr.iter().map(|x| x * x).sum::<f64>().sqrt();
+                if r > MAX_DISTANCE_BOHR {
+                    return Err(Error::invalid(
+                        &at("centre_bohr"),
+                        format!("|centre| = {r:e} bohr"),
+                        &format!("must lie within {MAX_DISTANCE_BOHR} bohr of the origin"),
+                    ));
+                }
+                for (i, a) in term.exponents_inv_bohr2.iter().enumerate() {
+                    if *a > MAX_EXPONENT_INV_BOHR2 {
+                        return Err(Error::invalid(
+                            &at(&format!("exponents_inv_bohr2[{i}]")),
+                            format!("{a:e}"),
+                            &format!(
+                                "above {MAX_EXPONENT_INV_BOHR2:e} bohr⁻², tighter than any atomic \
+                                 basis function"
+                            ),
+                        ));
+                    }
+                }
+            }
+        }
+        for (model, exponent) in [
+            ("ionization.exponent_au", ionization_exponent(&c.ionization)),
+            (
+                "recombination.exponent_au",
+                recombination_exponent(&c.recombination),
+            ),
+        ] {
+            if let Some(a) = exponent
+                && a > MAX_EXPONENT_INV_BOHR2
+            {
+                return Err(Error::invalid(
+                    &key(model),
+                    format!("{a:e}"),
+                    &format!(
+                        "above {MAX_EXPONENT_INV_BOHR2:e} bohr⁻², tighter than any atomic basis \
+                         function"
+                    ),
+                ));
+            }
+        }
         let orbital = match &c.dyson_orbital {
             Some(spec) => Some(Arc::new(Orbital::from_spec(spec).map_err(|e| {
                 Error::Inconsistent(format!("{}: {e}", key("dyson_orbital")))
@@ -600,6 +720,14 @@ impl TargetSpec {
             for (i, x) in position.iter().enumerate() {
                 require_finite(&key(&format!("position[{i}]")), *x)?;
             }
+            let r = position.iter().map(|x| x * x).sum::<f64>().sqrt();
+            if r > MAX_DISTANCE_BOHR {
+                return Err(Error::invalid(
+                    &key("position"),
+                    format!("{r:e} bohr from the origin"),
+                    &format!("must lie within {MAX_DISTANCE_BOHR} bohr of the origin"),
+                ));
+            }
             atoms.push(Atom {
                 element: a.element.clone(),
                 position: Vector3::from(position),
@@ -667,6 +795,51 @@ impl TargetSpec {
                 Some(e) => Some(e.value(&key("energy_ev"))? / units::HARTREE_EV),
                 None => None,
             };
+            if let Some(d) = dipole {
+                let norm = d.iter().map(|x| x.norm_sqr()).sum::<f64>().sqrt();
+                if norm > MAX_COUPLING_DIPOLE_AU {
+                    return Err(Error::invalid(
+                        &key(if c.dipole_au.is_some() {
+                            "dipole_au"
+                        } else {
+                            "dipole_debye"
+                        }),
+                        format!("|μ| = {norm:e} a.u."),
+                        &format!(
+                            "above {MAX_COUPLING_DIPOLE_AU} a.u. (127 D): no ionic transition or \
+                             permanent dipole is that large, and the hole propagator's work grows \
+                             with |μ|·F"
+                        ),
+                    ));
+                }
+            }
+            if let Some(e) = energy
+                && e.norm() * units::HARTREE_EV > MAX_COUPLING_ENERGY_EV
+            {
+                return Err(Error::invalid(
+                    &key("energy_ev"),
+                    format!("{:e} eV", e.norm() * units::HARTREE_EV),
+                    &format!(
+                        "above {MAX_COUPLING_ENERGY_EV} eV in magnitude: a field-free coupling \
+                         that large means the channels are not the ionic states (diagonalise \
+                         first), and the hole propagator's work grows with it"
+                    ),
+                ));
+            }
+            if a != b {
+                let gap = (channels[a].ip - channels[b].ip).abs() * units::HARTREE_EV;
+                if gap > MAX_COUPLED_GAP_EV {
+                    return Err(Error::invalid(
+                        &key("channels"),
+                        format!("{:?} ({gap:.4e} eV apart)", c.channels),
+                        &format!(
+                            "channels more than {MAX_COUPLED_GAP_EV} eV apart cannot be coupled: \
+                             the hole propagator's work grows with the gap, and the laser does \
+                             not couple states that far apart (leave the coupling out)"
+                        ),
+                    ));
+                }
+            }
             if dipole.is_none() && energy.is_none() {
                 return Err(Error::invalid(
                     &key("channels"),

@@ -38,7 +38,7 @@ mod wigner;
 
 pub use adk::{
     adk_angular_factor, adk_coefficient_squared, adk_cycle_averaged_rate, adk_static_rate,
-    effective_principal_quantum_number, linear_cycle_average_factor,
+    barrier_suppression_field, effective_principal_quantum_number, linear_cycle_average_factor,
 };
 pub use gamma_function::{gamma_function, ln_gamma_function};
 pub use keldysh::{ppt_g, ppt_g_taylor_coefficient};

@@ -14,9 +14,29 @@ pub struct Cli {
     /// What to do.
     #[command(subcommand)]
     pub command: Command,
-    /// No progress output on stderr.
+    /// No progress output on stderr (warnings and errors are still printed).
     #[arg(long, global = true)]
     pub quiet: bool,
+    /// Multiply every work limit by F (default 1). A run whose estimated work exceeds a limit
+    /// is refused before it starts; the message gives the estimate and the factor that would
+    /// let it run (README: warnings and limits).
+    #[arg(
+        long,
+        global = true,
+        value_name = "F",
+        default_value_t = 1.0,
+        allow_negative_numbers = true
+    )]
+    pub work_limit_factor: f64,
+    /// Largest estimated memory of a spectrum (MB); larger runs are refused before they start.
+    #[arg(
+        long,
+        global = true,
+        value_name = "MB",
+        default_value_t = 4000.0,
+        allow_negative_numbers = true
+    )]
+    pub max_memory_mb: f64,
 }
 
 /// Subcommands.
@@ -81,9 +101,19 @@ pub struct GridArgs {
     /// Photon energies in eV, FIRST:LAST:STEP.
     #[arg(long, value_name = "FIRST:LAST:STEP", allow_hyphen_values = true)]
     pub energies: Option<String>,
-    /// Highest return of the electron to include (1 = short and long first-return orbits).
-    #[arg(long, value_name = "N", default_value_t = 1)]
-    pub returns: u32,
+    /// Saddle method: highest return of the electron to include (1 = short and long
+    /// first-return orbits; at most 8). Default 1.
+    #[arg(long, value_name = "N", allow_negative_numbers = true)]
+    pub returns: Option<i64>,
+}
+
+/// Output format of `check`.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum CheckFormat {
+    /// Aligned text for reading.
+    Table,
+    /// JSON document.
+    Json,
 }
 
 /// Output format of a table.
@@ -157,24 +187,24 @@ pub enum MomentumArg {
     Stationary,
 }
 
-/// Approximations of the dipole (spectrum and holes).
+/// Approximations of the dipole (spectrum and holes; saddle method only).
 #[derive(Debug, Args)]
 pub struct ModelArgs {
-    /// Saddle method: where the hole propagator is evaluated.
-    #[arg(long, value_enum, default_value_t = HoleTimesArg::Complex)]
-    pub hole_times: HoleTimesArg,
+    /// Saddle method: where the hole propagator is evaluated [default: complex].
+    #[arg(long, value_enum)]
+    pub hole_times: Option<HoleTimesArg>,
     /// Saddle method: the hole propagator at the saddle only, or with its next-order terms
-    /// (its variation across the saddle).
-    #[arg(long, value_enum, default_value_t = HoleExpansionArg::NextOrder)]
-    pub hole_expansion: HoleExpansionArg,
+    /// (its variation across the saddle) [default: next-order].
+    #[arg(long, value_enum)]
+    pub hole_expansion: Option<HoleExpansionArg>,
     /// Saddle method: Gaussian ionization structure (gaussian, orbital models) in the phase or
-    /// in the prefactor.
-    #[arg(long, value_enum, default_value_t = StructureArg::Phase)]
-    pub ionization_structure: StructureArg,
+    /// in the prefactor [default: phase].
+    #[arg(long, value_enum)]
+    pub ionization_structure: Option<StructureArg>,
     /// Saddle method: Gaussian recombination structure (gaussian, lcao models) in the phase or
-    /// in the prefactor.
-    #[arg(long, value_enum, default_value_t = StructureArg::Auto)]
-    pub recombination_structure: StructureArg,
+    /// in the prefactor [default: auto].
+    #[arg(long, value_enum)]
+    pub recombination_structure: Option<StructureArg>,
 }
 
 /// `holecast check`.
@@ -184,9 +214,9 @@ pub struct CheckArgs {
     pub target: TargetArgs,
     #[command(flatten)]
     pub laser: LaserArgs,
-    /// Output format (table or json).
-    #[arg(long, value_enum, default_value_t = Format::Table)]
-    pub format: Format,
+    /// Output format.
+    #[arg(long, value_enum, default_value_t = CheckFormat::Table)]
+    pub format: CheckFormat,
 }
 
 /// `holecast orbits`.
@@ -204,6 +234,10 @@ pub struct OrbitsArgs {
     /// Write to this file instead of standard output.
     #[arg(long, value_name = "FILE")]
     pub out: Option<PathBuf>,
+    /// Also list the solved saddles that are not summed (the growing member of a pair beyond
+    /// its cutoff, growing amplitudes, orbits outside the pulse), with the reason in `status`.
+    #[arg(long)]
+    pub include_excluded: bool,
 }
 
 /// `holecast spectrum`.
@@ -215,23 +249,24 @@ pub struct SpectrumArgs {
     pub laser: LaserArgs,
     #[command(flatten)]
     pub grid: GridArgs,
-    /// Saddle summation.
-    #[arg(long, value_enum, default_value_t = SumArg::Uniform)]
-    pub sum: SumArg,
-    /// Method: saddle points or numerical quadrature (quadrature ignores --sum and --returns).
+    /// Saddle method: saddle summation [default: uniform].
+    #[arg(long, value_enum)]
+    pub sum: Option<SumArg>,
+    /// Method: saddle points or numerical quadrature. Options marked "saddle method" or
+    /// "quadrature" are refused with the other method.
     #[arg(long, value_enum, default_value_t = MethodArg::Saddle)]
     pub method: MethodArg,
-    /// Quadrature only: largest excursion time τ_max (cycles), where the excursion window ends
+    /// Quadrature: largest excursion time τ_max (cycles), where the excursion window ends
     /// (default 0.97: first returns only).
-    #[arg(long, value_name = "CYCLES", requires = "method")]
+    #[arg(long, value_name = "CYCLES", allow_negative_numbers = true)]
     pub excursion_cycles: Option<f64>,
-    /// Quadrature only: width of the window's falling ramp that ends at τ_max (cycles; default
+    /// Quadrature: width of the window's falling ramp that ends at τ_max (cycles; default
     /// 0.03). Use a wide ramp between the short and long excursion times to keep short orbits.
-    #[arg(long, value_name = "CYCLES", requires = "method")]
+    #[arg(long, value_name = "CYCLES", allow_negative_numbers = true)]
     pub window_fall_cycles: Option<f64>,
-    /// Quadrature only: how the drift-momentum integral is done.
-    #[arg(long, value_enum, default_value_t = MomentumArg::Exact)]
-    pub momentum_integral: MomentumArg,
+    /// Quadrature: how the drift-momentum integral is done [default: exact].
+    #[arg(long, value_enum)]
+    pub momentum_integral: Option<MomentumArg>,
     #[command(flatten)]
     pub model: ModelArgs,
     /// Output folder (created if missing).

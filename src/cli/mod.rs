@@ -1,6 +1,13 @@
-//! The command-line layer: arguments, validated settings, commands and atomic output.
+//! The command-line layer: arguments, validated settings, limits, commands, warnings, progress
+//! and atomic output.
 
 pub mod args;
+pub mod check;
 pub mod commands;
+pub mod describe;
+pub mod interrupt;
+pub mod limits;
 pub mod output;
+pub mod progress;
 pub mod settings;
+pub mod warnings;

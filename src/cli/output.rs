@@ -1,11 +1,24 @@
-//! Atomic file output: every file is written to a temporary file in its folder and renamed
-//! into place only when all files of a command are complete, so a failure leaves nothing
-//! half-written.
+//! Output files: atomic, one run per folder, a manifest, no leftovers.
+//!
+//! - Every file is written to a hidden temporary file `.NAME.tmp-PID` in its folder and renamed
+//!   into place only when all files of the command are complete, so a failure leaves nothing
+//!   half-written. Temporary files are registered with [`super::interrupt`], which removes them
+//!   on SIGINT/SIGTERM; those of a killed run (`kill -9`, power loss) are removed by the next
+//!   run that writes into the folder (the process PID is gone).
+//! - A command that writes a folder also writes `manifest-COMMAND.json`, the list of the files
+//!   of the run. The next run of the same command replaces that set: files of the old set that
+//!   the new run does not write (e.g. `holes.*` of a molecule, when the new target is an atom)
+//!   are removed, so a folder never mixes two runs. A run that rewrites a file of another
+//!   command's set removes that whole set. Folders written before manifests existed: the
+//!   command's own file names that the new run does not write are removed.
 
 use std::io::Write;
 use std::path::{Path, PathBuf};
 
 use anyhow::{Context, Result};
+use serde_json::{Value, json};
+
+use super::interrupt;
 
 fn temporary(path: &Path) -> PathBuf {
     let name = path
@@ -15,35 +28,224 @@ fn temporary(path: &Path) -> PathBuf {
     path.with_file_name(format!(".{name}.tmp-{}", std::process::id()))
 }
 
+/// The PID of a temporary file name `.NAME.tmp-PID`, if it is one.
+fn temporary_pid(name: &str) -> Option<u32> {
+    if !name.starts_with('.') {
+        return None;
+    }
+    let (_, pid) = name.rsplit_once(".tmp-")?;
+    pid.parse().ok()
+}
+
+/// Whether a process with this PID may still be running. Where `/proc` exists (Linux) it is
+/// asked; elsewhere a temporary file counts as abandoned once it is an hour old.
+fn may_be_running(pid: u32, path: &Path) -> bool {
+    if pid == std::process::id() {
+        return true;
+    }
+    let proc = Path::new("/proc");
+    if proc.join("self").exists() {
+        return proc.join(pid.to_string()).exists();
+    }
+    std::fs::metadata(path)
+        .and_then(|m| m.modified())
+        .ok()
+        .and_then(|t| t.elapsed().ok())
+        .is_none_or(|age| age.as_secs() < 3600)
+}
+
+/// Removes the temporary files of runs that were killed (their PID is gone) from `dir`;
+/// returns their names.
+pub fn remove_leftovers(dir: &Path) -> Vec<String> {
+    let mut removed = Vec::new();
+    let Ok(entries) = std::fs::read_dir(dir) else {
+        return removed;
+    };
+    let mut names: Vec<(String, PathBuf)> = entries
+        .filter_map(|e| e.ok())
+        .map(|e| (e.file_name().to_string_lossy().into_owned(), e.path()))
+        .collect();
+    names.sort();
+    for (name, path) in names {
+        if let Some(pid) = temporary_pid(&name)
+            && !may_be_running(pid, &path)
+            && std::fs::remove_file(&path).is_ok()
+        {
+            removed.push(name);
+        }
+    }
+    removed
+}
+
+fn write_temporary(tmp: &Path, bytes: &[u8]) -> std::io::Result<()> {
+    interrupt::register(&mut interrupt::lock(), tmp);
+    let result = std::fs::File::create(tmp).and_then(|mut f| {
+        f.write_all(bytes)?;
+        f.sync_all()
+    });
+    if result.is_err() {
+        let _ = std::fs::remove_file(tmp);
+        interrupt::forget(&mut interrupt::lock(), tmp);
+    }
+    result
+}
+
 /// Writes all `(path, contents)` pairs or none of them.
 pub fn write_all_atomic(files: &[(PathBuf, Vec<u8>)]) -> Result<()> {
     let mut written: Vec<(PathBuf, PathBuf)> = Vec::new();
     let cleanup = |written: &[(PathBuf, PathBuf)]| {
+        let mut registry = interrupt::lock();
         for (tmp, _) in written {
             let _ = std::fs::remove_file(tmp);
+            interrupt::forget(&mut registry, tmp);
         }
     };
     for (path, bytes) in files {
         let tmp = temporary(path);
-        let result = std::fs::File::create(&tmp)
-            .and_then(|mut f| f.write_all(bytes).and_then(|_| f.sync_all()));
-        if let Err(e) = result {
-            let _ = std::fs::remove_file(&tmp);
+        if let Err(e) = write_temporary(&tmp, bytes) {
             cleanup(&written);
             return Err(e).with_context(|| format!("cannot write {}", path.display()));
         }
         written.push((tmp, path.clone()));
     }
+    // The rename phase holds the interrupt lock: an interrupt waits for it to finish.
+    let mut registry = interrupt::lock();
     for (tmp, path) in &written {
         if let Err(e) = std::fs::rename(tmp, path) {
+            drop(registry);
             cleanup(&written);
             return Err(e).with_context(|| format!("cannot write {}", path.display()));
         }
+        interrupt::forget(&mut registry, tmp);
     }
     Ok(())
 }
 
-/// Writes one file atomically.
+/// Writes one file atomically (its folder's leftovers of killed runs are removed first).
 pub fn write_atomic(path: &Path, bytes: &[u8]) -> Result<()> {
+    if let Some(dir) = path.parent() {
+        remove_leftovers(if dir.as_os_str().is_empty() {
+            Path::new(".")
+        } else {
+            dir
+        });
+    }
     write_all_atomic(&[(path.to_path_buf(), bytes.to_vec())])
+}
+
+fn manifest_name(command: &str) -> String {
+    format!("manifest-{command}.json")
+}
+
+/// The file names listed by a manifest (None if it is missing or unreadable).
+fn manifest_files(path: &Path) -> Option<(String, Vec<String>)> {
+    let text = std::fs::read_to_string(path).ok()?;
+    let v: Value = serde_json::from_str(&text).ok()?;
+    let command = v["command"].as_str()?.to_string();
+    let files = v["files"]
+        .as_array()?
+        .iter()
+        .filter_map(|f| f["name"].as_str().map(str::to_string))
+        .filter(|n| !n.contains('/') && !n.contains('\\') && n != "." && n != "..")
+        .collect();
+    Some((command, files))
+}
+
+/// What [`write_set`] did.
+pub struct Written {
+    /// The files written (the manifest last).
+    pub files: Vec<PathBuf>,
+    /// Files of earlier runs removed (stale outputs and temporary files of killed runs).
+    pub removed: Vec<String>,
+}
+
+/// Writes the output set of `command` into `dir` (created if missing): the files `(name,
+/// contents)`, then `manifest-COMMAND.json`; then removes the files of the previous run
+/// (module documentation). `own_names` are every file name the command can write (used for
+/// folders without a manifest).
+pub fn write_set(
+    dir: &Path,
+    command: &str,
+    files: &[(String, Vec<u8>)],
+    own_names: &[&str],
+) -> Result<Written> {
+    std::fs::create_dir_all(dir)
+        .with_context(|| format!("cannot create output folder {}", dir.display()))?;
+    let mut removed = remove_leftovers(dir);
+    let names: Vec<&str> = files.iter().map(|(n, _)| n.as_str()).collect();
+    // The previous sets that this run replaces: this command's, and any other command's that
+    // shares a file with it.
+    let mut stale: Vec<String> = Vec::new();
+    let mut old_manifests: Vec<String> = Vec::new();
+    let mut own_manifest_found = false;
+    let mut entries: Vec<String> = std::fs::read_dir(dir)
+        .map(|d| {
+            d.filter_map(|e| e.ok())
+                .map(|e| e.file_name().to_string_lossy().into_owned())
+                .filter(|n| n.starts_with("manifest-") && n.ends_with(".json"))
+                .collect()
+        })
+        .unwrap_or_default();
+    entries.sort();
+    for m in entries {
+        let Some((other, listed)) = manifest_files(&dir.join(&m)) else {
+            continue;
+        };
+        let same = other == command;
+        own_manifest_found |= same;
+        if same || listed.iter().any(|f| names.contains(&f.as_str())) {
+            stale.extend(listed.into_iter().filter(|f| !names.contains(&f.as_str())));
+            if m != manifest_name(command) {
+                old_manifests.push(m);
+            }
+        }
+    }
+    if !own_manifest_found {
+        stale.extend(
+            own_names
+                .iter()
+                .filter(|n| !names.contains(n))
+                .map(|n| n.to_string()),
+        );
+    }
+    let manifest = json!({
+        "holecast_version": env!("CARGO_PKG_VERSION"),
+        "command": command,
+        "files": files
+            .iter()
+            .map(|(n, b)| json!({"name": n, "bytes": b.len()}))
+            .collect::<Vec<_>>(),
+    });
+    let mut text = serde_json::to_string_pretty(&manifest)?;
+    text.push('\n');
+    let mut all: Vec<(PathBuf, Vec<u8>)> = files
+        .iter()
+        .map(|(n, b)| (dir.join(n), b.clone()))
+        .collect();
+    all.push((dir.join(manifest_name(command)), text.into_bytes()));
+    write_all_atomic(&all)?;
+    stale.sort();
+    stale.dedup();
+    for name in stale.into_iter().chain(old_manifests) {
+        let path = dir.join(&name);
+        if path.is_file() && std::fs::remove_file(&path).is_ok() {
+            removed.push(name);
+        }
+    }
+    Ok(Written {
+        files: all.into_iter().map(|(p, _)| p).collect(),
+        removed,
+    })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn temporary_names_carry_the_pid() {
+        assert_eq!(temporary_pid(".spectrum.json.tmp-4242"), Some(4242));
+        assert_eq!(temporary_pid("spectrum.json"), None);
+        assert_eq!(temporary_pid(".x.tmp-abc"), None);
+    }
 }

@@ -8,6 +8,7 @@ use anyhow::{Context, Result, anyhow, bail};
 use holecast::cutoff::Cutoffs;
 use holecast::field::{Field, TimeStructure};
 use holecast::laser::LaserSpec;
+use holecast::orbits::{WorkLimits, budget};
 use holecast::target::{Target, TargetSpec};
 use holecast::units;
 
@@ -19,6 +20,8 @@ pub struct LoadedTarget {
     pub target: Target,
     /// The file it was read from (None for `--ip`).
     pub file: Option<PathBuf>,
+    /// Channels whose Dyson orbital no model uses.
+    pub unused_orbitals: Vec<String>,
 }
 
 fn read_text(path: &Path, what: &str) -> Result<String> {
@@ -39,11 +42,13 @@ pub fn target(args: &TargetArgs) -> Result<LoadedTarget> {
             Ok(LoadedTarget {
                 target,
                 file: Some(path.clone()),
+                unused_orbitals: spec.unused_orbitals(),
             })
         }
         (None, Some(ip)) => Ok(LoadedTarget {
             target: Target::atom(ip)?,
             file: None,
+            unused_orbitals: Vec::new(),
         }),
         _ => bail!("give a target file or --ip EV (not both)"),
     }
@@ -94,8 +99,20 @@ pub fn laser(args: &LaserArgs) -> Result<(LaserSpec, Field)> {
     Ok((spec, field))
 }
 
-/// Parses `FIRST:LAST:STEP`.
-fn parse_range(text: &str, option: &str) -> Result<(f64, f64, f64)> {
+/// Smallest harmonic order of a grid: the group delay needs `Ω ± 0.001ω > 0`, and nothing in
+/// the model describes photons far below the driver's.
+pub const MIN_ORDER: f64 = 0.01;
+
+/// Parses `FIRST:LAST:STEP` (in the option's unit; `to_order` converts it to harmonic orders of
+/// the field's `omega` for the lower bound) and checks the number of points against the limits before any grid is
+/// built.
+fn parse_range(
+    text: &str,
+    option: &str,
+    to_order: f64,
+    omega: f64,
+    limits: &WorkLimits,
+) -> Result<(f64, f64, f64)> {
     let parts: Vec<&str> = text.split(':').collect();
     if parts.len() != 3 {
         bail!("{option} {text:?}: expected FIRST:LAST:STEP, e.g. 11:45:1");
@@ -118,16 +135,22 @@ fn parse_range(text: &str, option: &str) -> Result<(f64, f64, f64)> {
     if a <= 0.0 {
         bail!("{option} {text:?}: FIRST must be positive");
     }
+    if a * to_order < MIN_ORDER {
+        bail!(
+            "{option} {text:?}: FIRST = {a:e} is below the smallest harmonic order allowed, \
+             {MIN_ORDER} (a photon energy of {:.4} eV in this field): such low photon energies \
+             are outside the model",
+            units::au_to_ev(MIN_ORDER * omega)
+        );
+    }
     if b < a {
         bail!("{option} {text:?}: LAST must not be below FIRST");
     }
     if s <= 0.0 {
         bail!("{option} {text:?}: STEP must be positive");
     }
-    let n = ((b - a) / s + 1e-9).floor() + 1.0;
-    if n > 1e6 {
-        bail!("{option} {text:?}: {n} points is more than the 1,000,000 allowed");
-    }
+    budget::check_grid(a, b, s, limits)
+        .map_err(|e| anyhow::Error::new(e).context(format!("{option} {text:?}")))?;
     Ok((a, b, s))
 }
 
@@ -137,18 +160,26 @@ fn grid_points(a: f64, b: f64, s: f64) -> Vec<f64> {
 }
 
 /// The photon energies (a.u.) requested, or the default range: from the first order above the
-/// lowest Ip `ip` to 20% past the highest cutoff among `cutoffs` (one per channel).
-pub fn energies(args: &GridArgs, field: &Field, ip: f64, cutoffs: &[Cutoffs]) -> Result<Vec<f64>> {
+/// lowest Ip `ip` to 20% past the highest cutoff among `cutoffs` (one per channel). The number
+/// of points is checked against `limits` before the grid is built.
+pub fn energies(
+    args: &GridArgs,
+    field: &Field,
+    ip: f64,
+    cutoffs: &[Cutoffs],
+    limits: &WorkLimits,
+) -> Result<Vec<f64>> {
     let omega = field.omega();
     if let Some(text) = &args.orders {
-        let (a, b, s) = parse_range(text, "--orders")?;
+        let (a, b, s) = parse_range(text, "--orders", 1.0, omega, limits)?;
         return Ok(grid_points(a, b, s)
             .into_iter()
             .map(|q| q * omega)
             .collect());
     }
     if let Some(text) = &args.energies {
-        let (a, b, s) = parse_range(text, "--energies")?;
+        let per_ev = units::ev_to_au(1.0) / omega;
+        let (a, b, s) = parse_range(text, "--energies", per_ev, omega, limits)?;
         return Ok(grid_points(a, b, s)
             .into_iter()
             .map(units::ev_to_au)
@@ -165,7 +196,14 @@ pub fn energies(args: &GridArgs, field: &Field, ip: f64, cutoffs: &[Cutoffs]) ->
             .map(|c| c.quantum.unwrap_or(c.classical))
             .fold(0.0, f64::max)
         / omega;
-    Ok(grid_points(first, top.max(first + step), step)
+    let last = top.max(first + step);
+    budget::check_grid(first, last, step, limits).map_err(|e| {
+        anyhow::Error::new(e).context(format!(
+            "default grid (orders H{first:.1} to H{last:.4e}: from the first above Ip to 20% past \
+             the cutoff, step {step}; choose one with --orders FIRST:LAST:STEP)"
+        ))
+    })?;
+    Ok(grid_points(first, last, step)
         .into_iter()
         .map(|q| q * omega)
         .collect())

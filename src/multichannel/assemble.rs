@@ -14,6 +14,7 @@ use crate::momentum::rotate;
 use crate::orbits::FamilyLabel;
 use crate::orientation::{AlignmentGrid, Orientation, full_grid, linear_molecule_grid};
 use crate::spectrum::{Contribution, NEGLIGIBLE, project};
+use crate::status::{FamilyStatus, RowStatus};
 use crate::target::{OrientationGridSpec, Target};
 
 /// The contribution of one channel pair, with its families.
@@ -76,8 +77,11 @@ pub struct MultichannelSpectrum {
     /// `dφ/dΩ` of the total (a.u.); None for periodic fields (see [`PairSpectrum::group_delay`];
     /// the families carry their own).
     pub group_delay: Vec<Option<f64>>,
-    /// Whether every saddle of every pair converged at the energy.
+    /// Whether the row is complete: every family that should contribute converged
+    /// ([`RowStatus::Complete`]; the one definition used by every output).
     pub complete: Vec<bool>,
+    /// The status of each row ([`crate::status`]).
+    pub status: Vec<RowStatus>,
     /// Channel-pair contributions.
     pub pairs: Vec<PairSpectrum>,
     /// Number of orientations summed.
@@ -347,7 +351,9 @@ fn finish(plan: &Plan<'_>, mut acc: Accumulator, count: usize) -> Result<Multich
     };
     let delay =
         |v: &[CVec3], k: usize| -> Option<f64> { if periodic { None } else { family_delay(v, k) } };
-    let mut complete = vec![true; n];
+    // Every family's status at every energy; a row's status follows from them (the one
+    // definition of a complete row, crate::status).
+    let mut row_families: Vec<Vec<FamilyStatus>> = vec![Vec::new(); n];
     let mut pairs = Vec::with_capacity(stage.pairs.len());
     for (p, pair) in stage.pairs.iter().enumerate() {
         let mut pair_grid = vec![CVec3::zeros(); stage.grid.len()];
@@ -357,10 +363,22 @@ fn finish(plan: &Plan<'_>, mut acc: Accumulator, count: usize) -> Result<Multich
             for (t, d) in pair_grid.iter_mut().zip(values) {
                 *t += d;
             }
-            for (k, c) in complete.iter_mut().enumerate() {
-                if family.points[central(k)].is_failure() || acc.failed[p][f][central(k)] {
-                    *c = false;
-                }
+            let status: Vec<FamilyStatus> = (0..n)
+                .map(|k| {
+                    let i = central(k);
+                    let failure = match family.points[i] {
+                        crate::orbits::OrbitPoint::Failed(fl) => Some(fl.reason),
+                        crate::orbits::OrbitPoint::Solved(_) => None,
+                    };
+                    let exclusion = match pair.kernels.values[f][i].kind {
+                        KernelKind::Excluded => pair.table.exclusion(f, i),
+                        _ => None,
+                    };
+                    FamilyStatus::of(failure, exclusion, acc.failed[p][f][i])
+                })
+                .collect();
+            for (row, s) in row_families.iter_mut().zip(&status) {
+                row.push(*s);
             }
             families.push(Contribution {
                 label: family.label,
@@ -378,6 +396,7 @@ fn finish(plan: &Plan<'_>, mut acc: Accumulator, count: usize) -> Result<Multich
                 emission_time: (0..n)
                     .map(|k| family.points[central(k)].saddle().map(|s| s.t_ret.re))
                     .collect(),
+                status,
             });
         }
         pairs.push(PairSpectrum {
@@ -388,6 +407,8 @@ fn finish(plan: &Plan<'_>, mut acc: Accumulator, count: usize) -> Result<Multich
             families,
         });
     }
+    let status: Vec<RowStatus> = row_families.iter().map(RowStatus::of).collect();
+    let complete = status.iter().map(|s| *s == RowStatus::Complete).collect();
     let holes = acc.holes.finish(&plan.holes);
     Ok(MultichannelSpectrum {
         omega: field.omega(),
@@ -404,6 +425,7 @@ fn finish(plan: &Plan<'_>, mut acc: Accumulator, count: usize) -> Result<Multich
         total: (0..n).map(|k| total_grid[central(k)]).collect(),
         group_delay: (0..n).map(|k| delay(&total_grid, k)).collect(),
         complete,
+        status,
         pairs,
         orientations: count,
         holes,

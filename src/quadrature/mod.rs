@@ -740,6 +740,7 @@ pub fn quadrature_spectrum(
         total: (0..n).map(|k| total_grid[central(k)]).collect(),
         group_delay: (0..n).map(|k| delay(&total_grid, k)).collect(),
         complete: vec![true; n],
+        status: vec![crate::status::RowStatus::Complete; n],
         pairs,
         orientations: dipole.orientations,
         holes: Vec::new(),

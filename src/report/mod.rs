@@ -62,6 +62,29 @@ impl RowBuilder {
     pub fn complex(&mut self, name: impl Into<String>, v: Option<Complex64>) -> &mut Self {
         self.push(name, Cell::Complex(v))
     }
+
+    /// Replaces the cell of column `name` (no effect if there is none).
+    pub fn set(&mut self, name: &str, cell: Cell) -> &mut Self {
+        if let Some(i) = self.names.iter().position(|n| n == name) {
+            self.cells[i] = cell;
+        }
+        self
+    }
+
+    /// Names of the columns whose value is a non-finite number (NaN or ±inf); the writers turn
+    /// such values into null, so a row that has any must say why in its status.
+    pub fn non_finite(&self) -> Vec<String> {
+        self.names
+            .iter()
+            .zip(&self.cells)
+            .filter(|(_, c)| match c {
+                Cell::Real(Some(x)) => !x.is_finite(),
+                Cell::Complex(Some(z)) => !(z.re.is_finite() && z.im.is_finite()),
+                _ => false,
+            })
+            .map(|(n, _)| n.clone())
+            .collect()
+    }
 }
 
 impl Table {

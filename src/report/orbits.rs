@@ -5,6 +5,7 @@ use num_complex::Complex64;
 use super::{Cell, RowBuilder, Table};
 use crate::field::bdot;
 use crate::orbits::{OrbitPoint, OrbitTable};
+use crate::status::FamilyStatus;
 use crate::units;
 
 /// One channel pair's orbits with the labels of its channels.
@@ -21,9 +22,17 @@ fn fs(z: Complex64) -> Complex64 {
     Complex64::new(units::au_to_fs(z.re), units::au_to_fs(z.im))
 }
 
-/// Rows: one per (channel pair, family, energy), omitting the unphysical member of a pair
-/// beyond its cutoff. `omega` is the reference photon energy (a.u.) for the order column.
-pub fn rows(tables: &[LabelledTable<'_>], omega: f64) -> Result<Table, String> {
+/// Rows: one per (channel pair, family, energy). Solved saddles that are not summed
+/// ([`OrbitTable::exclusion`]: the growing member of a pair beyond its cutoff, a growing
+/// amplitude, an orbit outside the pulse) are listed only if `include_excluded`, with their
+/// reason in `status`. `omega` is the reference photon energy (a.u.) for the order column.
+/// `status` is the family's [`FamilyStatus`] code (`summed`, `excluded-…`, `below-threshold`,
+/// …, `failed-…`).
+pub fn rows(
+    tables: &[LabelledTable<'_>],
+    omega: f64,
+    include_excluded: bool,
+) -> Result<Table, String> {
     let mut out = Table::default();
     for lt in tables {
         let t = lt.table;
@@ -34,9 +43,15 @@ pub fn rows(tables: &[LabelledTable<'_>], omega: f64) -> Result<Table, String> {
                     .pair
                     .and_then(|p| t.pairs[p].points[k])
                     .is_some_and(|pp| pp.beyond_cutoff());
-                if matches!(point, OrbitPoint::Solved(_)) && !t.is_physical(f, k) {
+                let exclusion = t.exclusion(f, k);
+                if exclusion.is_some() && !include_excluded {
                     continue;
                 }
+                let failure = match point {
+                    OrbitPoint::Failed(fl) => Some(fl.reason),
+                    OrbitPoint::Solved(_) => None,
+                };
+                let status = FamilyStatus::of(failure, exclusion, false);
                 let mut r = RowBuilder::default();
                 r.push("ionized_channel", Cell::Text(lt.ionized.to_string()))
                     .push("recombined_channel", Cell::Text(lt.recombined.to_string()))
@@ -60,6 +75,7 @@ pub fn rows(tables: &[LabelledTable<'_>], omega: f64) -> Result<Table, String> {
                             )
                             .push("beyond_cutoff", Cell::Bool(beyond))
                             .push("converged", Cell::Bool(true))
+                            .push("status", Cell::Text(status.code()))
                             .real("residual", Some(s.residual))
                             .push("iterations", Cell::Int(i64::from(s.iterations)))
                             .push("failure", Cell::Text(String::new()));
@@ -72,11 +88,14 @@ pub fn rows(tables: &[LabelledTable<'_>], omega: f64) -> Result<Table, String> {
                             .real("return_energy_ev", None)
                             .push("beyond_cutoff", Cell::Bool(beyond))
                             .push("converged", Cell::Bool(false))
+                            .push("status", Cell::Text(status.code()))
                             .real("residual", Some(fl.residual))
                             .push("iterations", Cell::Int(i64::from(fl.iterations)))
                             .push("failure", Cell::Text(fl.reason.to_string()));
                     }
                 }
+                let bad = r.non_finite();
+                r.push("non_finite_columns", Cell::Text(bad.join(" ")));
                 out.add(r)?;
             }
         }

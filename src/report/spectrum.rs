@@ -9,6 +9,7 @@ use crate::dipole::KernelKind;
 use crate::field::CVec3;
 use crate::multichannel::MultichannelSpectrum;
 use crate::spectrum::project;
+use crate::status::FamilyStatus;
 use crate::units;
 
 fn kind_text(k: KernelKind) -> &'static str {
@@ -20,6 +21,29 @@ fn kind_text(k: KernelKind) -> &'static str {
         KernelKind::Failed => "failed",
     }
 }
+
+/// The kernel column: `none` where the family is absent (below threshold, no return, …) rather
+/// than failed.
+fn kernel_text(k: KernelKind, status: FamilyStatus) -> &'static str {
+    match (k, status) {
+        (KernelKind::Failed, FamilyStatus::Absent(_)) => "none",
+        (k, _) => kind_text(k),
+    }
+}
+
+/// A row with non-finite numbers: `status` becomes `non-finite`, `complete` false, and
+/// `non_finite_columns` names them (the writers write them as null).
+fn mark_non_finite(r: &mut RowBuilder) {
+    let bad = r.non_finite();
+    if !bad.is_empty() {
+        r.set("status", Cell::Text(NON_FINITE.into()))
+            .set("complete", Cell::Bool(false))
+            .set("non_finite_columns", Cell::Text(bad.join(" ")));
+    }
+}
+
+/// Row status of a row with non-finite values (beside the codes of [`RowStatus`]).
+pub const NON_FINITE: &str = "non-finite";
 
 fn fs(x: Option<f64>) -> Option<f64> {
     x.map(units::au_to_fs)
@@ -79,6 +103,8 @@ pub fn rows(s: &MultichannelSpectrum) -> Result<Table, String> {
             .real("phase_rad", *phase)
             .real("group_delay_fs", fs(s.group_delay[k]))
             .push("complete", Cell::Bool(s.complete[k]))
+            .push("status", Cell::Text(s.status[k].code().into()))
+            .push("non_finite_columns", Cell::Text(String::new()))
             .complex("dipole_x", Some(d.x))
             .complex("dipole_y", Some(d.y))
             .complex("dipole_z", Some(d.z))
@@ -127,16 +153,33 @@ pub fn rows(s: &MultichannelSpectrum) -> Result<Table, String> {
                     .real(format!("{key}_group_delay_fs"), fs(con.group_delay[k]))
                     .push(
                         format!("{key}_kernel"),
-                        Cell::Text(kind_text(con.kind[k]).into()),
-                    );
+                        Cell::Text(kernel_text(con.kind[k], con.status[k]).into()),
+                    )
+                    .push(format!("{key}_status"), Cell::Text(con.status[k].code()));
             }
         }
+        mark_non_finite(&mut r);
         out.add(r)?;
     }
     Ok(out)
 }
 
-/// Hole-dynamics rows: one per (reference family, energy).
+/// The status of the reference channel's family behind a hole density, at energy index `k`.
+fn reference_status(
+    s: &MultichannelSpectrum,
+    h: &crate::multichannel::HoleDensity,
+    k: usize,
+) -> Option<FamilyStatus> {
+    s.pairs
+        .iter()
+        .filter(|p| p.ion == s.reference && p.rec == s.reference)
+        .flat_map(|p| p.families.iter())
+        .find(|c| c.label == h.label && c.half_cycle == h.half_cycle)
+        .map(|c| c.status[k])
+}
+
+/// Hole-dynamics rows: one per (reference family, energy); `status` is `complete` where the
+/// hole was decoded, else the reference family's status (`below-threshold`, `failed-…`, …).
 pub fn hole_rows(s: &MultichannelSpectrum) -> Result<Table, String> {
     let mut out = Table::default();
     let n = s.labels.len();
@@ -153,7 +196,16 @@ pub fn hole_rows(s: &MultichannelSpectrum) -> Result<Table, String> {
                     "delay_fs",
                     point.as_ref().map(|p| units::au_to_fs(p.t_ret - p.t_ion)),
                 )
-                .real("yield", point.as_ref().map(|p| p.yield_weight));
+                .real("yield", point.as_ref().map(|p| p.yield_weight))
+                .push(
+                    "status",
+                    Cell::Text(match (point, reference_status(s, h, k)) {
+                        (Some(_), _) => "complete".into(),
+                        (None, Some(st)) => st.code(),
+                        (None, None) => "no-saddle".into(),
+                    }),
+                )
+                .push("non_finite_columns", Cell::Text(String::new()));
             for (i, label) in s.labels.iter().enumerate() {
                 r.real(
                     format!("population_{label}"),
@@ -168,6 +220,7 @@ pub fn hole_rows(s: &MultichannelSpectrum) -> Result<Table, String> {
                         .real(format!("{key}_phase_rad"), c.map(|c| c.arg()));
                 }
             }
+            mark_non_finite(&mut r);
             out.add(r)?;
         }
     }

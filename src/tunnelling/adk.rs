@@ -115,3 +115,16 @@ pub fn adk_cycle_averaged_rate(
 ) -> Result<f64, TunnellingError> {
     Ok(adk_static_rate(ip, z, l, m, field)? * linear_cycle_average_factor(ip, field)?)
 }
+
+/// Barrier-suppression field `F_BS = Ip²/(4Z)` (a.u.): the static field at which the top of the
+/// barrier `−Z/r − F r` falls to `−Ip` (classical estimate; S. Augst, D. Strickland,
+/// D. D. Meyerhofer, S. L. Chin, J. H. Eberly, PRL 63, 2212 (1989)). Hydrogen: 1/16 a.u.,
+/// 1.37 × 10¹⁴ W/cm². Above it the rates of this module do not apply (see
+/// [`adk_static_rate`]). Returns NaN unless `ip` and `z` are finite and positive.
+pub fn barrier_suppression_field(ip: f64, z: f64) -> f64 {
+    if ip.is_finite() && ip > 0.0 && z.is_finite() && z > 0.0 {
+        ip * ip / (4.0 * z)
+    } else {
+        f64::NAN
+    }
+}
