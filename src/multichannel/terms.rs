@@ -15,7 +15,7 @@
 //!
 //! **The hole propagator beyond leading order** ([`super::HoleExpansion::NextOrder`]). Each
 //! saddle's `U_I` gets its next-order terms and the cross term of its slope with the structure
-//! prefactor's ([`crate::orbits::expansion`]; the prefactor differentiated by central
+//! prefactor's ([`crate::orbits::expansion`]; the prefactor differentiated by forward
 //! differences per class). In the zone about a pair's caustic (`|ζ| < 1`) the expansion fails;
 //! there each family's contribution is its leading-order value times the ratio
 //! next-order/leading-order bridged linearly in Ω from the nearest points outside the zone on
@@ -432,7 +432,7 @@ fn hole_element(
 /// The next-order expansion of one saddle and its neighbours.
 struct Local {
     expansion: SaddleExpansion,
-    neighbours: [Neighbour; 4],
+    neighbours: [Neighbour; 2],
 }
 
 /// What the next order does at one point of a family.
@@ -774,20 +774,24 @@ fn pair_chunk(
                                 continue;
                             }
                             // The next order: U_I's own terms, and the cross term of its slope
-                            // with the structure's, Σ_ab A_ab ∂_a U ∂_b P (∂_b P by central
+                            // with the structure's, Σ_ab A_ab ∂_a U ∂_b P (∂_b P by forward
                             // differences).
                             let local = table_expansions.as_ref().and_then(|e| e[f][i].local());
                             let next = match (xh, local) {
                                 (Some(xh), Some(local)) => {
-                                    let nb = local.neighbours.map(|n| n.saddle(s));
-                                    let at = |k: usize| prefactor(&nb[k], false);
+                                    // P at the saddle by the same function as at the neighbours
+                                    // (the factorised linear path uses the exact return momentum).
+                                    let base = match term {
+                                        Shells::Plain if caches[c].is_some() => prefactor(s, false),
+                                        _ => Some(pre),
+                                    };
+                                    let at =
+                                        |k: usize| prefactor(&local.neighbours[k].saddle(s), false);
                                     let mut v = pre * xh.value;
-                                    if let (Some(rp), Some(rm), Some(ip), Some(im)) =
-                                        (at(0), at(1), at(2), at(3))
-                                    {
-                                        let d = Complex64::new(0.5 / STEP, 0.0);
+                                    if let (Some(p0), Some(pr), Some(pi)) = (base, at(0), at(1)) {
+                                        let d = Complex64::new(1.0 / STEP, 0.0);
                                         v +=
-                                            ((rp - rm) * xh.slope[0] + (ip - im) * xh.slope[1]) * d;
+                                            ((pr - p0) * xh.slope[0] + (pi - p0) * xh.slope[1]) * d;
                                     }
                                     Some(v * kernel.value)
                                 }

@@ -17,8 +17,8 @@
 //! propagator `U_I(t_r, t_i)`, whose variation across the saddle (the laser moving the hole on
 //! the time scale of the saddle's width) is the largest such error of the multichannel dipole
 //! (docs/validation.md), with `h` the spreading factor ([`spreading_log_gradient`]) times the
-//! structure prefactor (differentiated by central differences at the [`Neighbour`]s). `F'''`
-//! comes from central differences of the analytic Hessian ([`super::equations::evaluate`]).
+//! structure prefactor (differentiated by forward differences at the [`Neighbour`]s). `F'''`
+//! comes from forward differences of the analytic Hessian ([`super::equations::evaluate`]).
 //!
 //! The expansion holds away from coalescing saddles; near a caustic `A` grows without bound
 //! ([`near_caustic`]). There the multichannel dipole bridges the ratio of the next-order to the
@@ -31,12 +31,13 @@ use super::Saddle;
 use super::equations::{ChannelPair, SaddleEval, evaluate};
 use crate::field::{CVec3, Field};
 
-/// Step of the central differences of the Hessian (a.u. of time), and of the neighbours
-/// ([`SaddleExpansion::with_neighbours`]).
-pub const STEP: f64 = 1e-3;
+/// Step of the forward differences of the Hessian (a.u. of time), and of the neighbours
+/// ([`SaddleExpansion::with_neighbours`]): truncation error of relative order `STEP/|t|`
+/// (~10⁻⁵ for the time scales of a saddle, ≳ 10 a.u.), rounding error ~10⁻¹².
+pub const STEP: f64 = 1e-4;
 
-/// The saddle's kinematics at `t_r ± STEP` or `t_i ± STEP` (the other time fixed): what a
-/// prefactor needs to be differentiated across the saddle by central differences.
+/// The saddle's kinematics at `t_r + STEP` or `t_i + STEP` (the other time fixed): what a
+/// prefactor needs to be differentiated across the saddle by forward differences.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct Neighbour {
     /// Return time.
@@ -92,18 +93,19 @@ impl SaddleExpansion {
         Self::with_neighbours(field, pair, omega, t_ret, t_ion).0
     }
 
-    /// The expansion and the neighbours `[t_r + STEP, t_r − STEP, t_i + STEP, t_i − STEP]`
-    /// (from the same evaluations).
+    /// The expansion and the neighbours `[t_r + STEP, t_i + STEP]` (from the same
+    /// evaluations).
     pub fn with_neighbours(
         field: &Field,
         pair: ChannelPair,
         omega: f64,
         t_ret: Complex64,
         t_ion: Complex64,
-    ) -> (Self, [Neighbour; 4]) {
+    ) -> (Self, [Neighbour; 2]) {
         let i = Complex64::i();
         let at = |dr: f64, di: f64| evaluate(field, pair, omega, t_ret + dr, t_ion + di);
-        let [rr, ri, ii] = at(0.0, 0.0).hessian;
+        let centre = at(0.0, 0.0).hessian;
+        let [rr, ri, ii] = centre;
         // F'' = iΦ''; −F'' = −iΦ''.
         let m = [[-i * rr, -i * ri], [-i * ri, -i * ii]];
         let det = m[0][0] * m[1][1] - m[0][1] * m[1][0];
@@ -111,15 +113,15 @@ impl SaddleExpansion {
             [m[1][1] / det, -m[0][1] / det],
             [-m[1][0] / det, m[0][0] / det],
         ];
-        let shifts = [(STEP, 0.0), (-STEP, 0.0), (0.0, STEP), (0.0, -STEP)];
-        let evals: [SaddleEval; 4] = shifts.map(|(dr, di)| at(dr, di));
-        let d = |a: Complex64, b: Complex64| i * (a - b) / (2.0 * STEP);
+        let shifts = [(STEP, 0.0), (0.0, STEP)];
+        let evals: [SaddleEval; 2] = shifts.map(|(dr, di)| at(dr, di));
+        let d = |a: Complex64, b: Complex64| i * (a - b) / STEP;
         let h = |k: usize| evals[k].hessian;
         let third = [
-            d(h(0)[0], h(1)[0]),
-            d(h(0)[1], h(1)[1]),
-            d(h(0)[2], h(1)[2]),
-            d(h(2)[2], h(3)[2]),
+            d(h(0)[0], centre[0]),
+            d(h(0)[1], centre[1]),
+            d(h(0)[2], centre[2]),
+            d(h(1)[2], centre[2]),
         ];
         let neighbours = std::array::from_fn(|k| {
             let (dr, di) = shifts[k];
