@@ -1,6 +1,7 @@
 //! holecast: multichannel high-harmonic dipoles of molecules from strong-field quantum orbits.
 #![warn(missing_docs)]
 
+pub mod address;
 pub mod classical;
 pub mod cmath;
 pub mod cutoff;
