@@ -11,6 +11,8 @@
 
 pub mod halton;
 pub mod levenberg;
+pub mod lines;
+pub mod measured;
 pub mod minimise;
 pub mod multistart;
 pub mod parameters;
