@@ -14,9 +14,12 @@ pub mod levenberg;
 pub mod lines;
 pub mod measured;
 pub mod minimise;
+pub mod model;
 pub mod multistart;
+pub mod objective;
 pub mod parameters;
 pub mod problem;
+pub mod spec;
 pub mod profile;
 pub mod uncertainty;
 
