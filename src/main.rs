@@ -12,7 +12,10 @@ use cli::limits::{Limits, hint};
 
 fn main() -> ExitCode {
     let cli = Cli::parse();
-    cli::interrupt::install();
+    // `fit` installs its own handler (stop, then write the best result so far).
+    if !matches!(cli.command, Command::Fit(_)) {
+        cli::interrupt::install();
+    }
     let result = Limits::new(cli.work_limit_factor, cli.max_memory_mb).and_then(|limits| {
         let global = Global {
             quiet: cli.quiet,
@@ -24,6 +27,8 @@ fn main() -> ExitCode {
             Command::Orbits(a) => cli::commands::orbits(a, &global),
             Command::Spectrum(a) => cli::commands::spectrum(a, &global),
             Command::Holes(a) => cli::commands::holes(a, &global),
+            Command::Fit(a) => cli::fit::fit(a, &global),
+            Command::Synthetic(a) => cli::fit::synthetic(a, &global),
         }
     });
     match result {

@@ -53,6 +53,11 @@ pub enum Command {
     /// Compute the hole density matrix decoded by each harmonic and write holes.json,
     /// holes.csv and holes.svg (populations and coherences vs. return delay).
     Holes(HolesArgs),
+    /// Fit model spectra to measured ones (fit.json, fit.csv, fit.svg, fitted-target.json);
+    /// with --expected-noise, the expected uncertainties of planned datasets instead.
+    Fit(super::fit::FitArgs),
+    /// Write synthetic line yields with seeded noise, in the format `fit` reads.
+    Synthetic(super::fit::SyntheticArgs),
 }
 
 /// Which target.

@@ -19,7 +19,8 @@
 //! change as small, when no parameter moves by more than `xtol` of its magnitude, or when the
 //! gradient is orthogonal to the residuals to `gtol` (`max_j |g_j| / (‖J_j‖ ‖r‖)`); it stops
 //! (not converged) when λ grows past 1e20 without an accepted step and the gradient test fails,
-//! or when the iteration limit is reached.
+//! or when the iteration limit is reached. With forward differences, the first time no step is
+//! accepted the solver switches to central differences instead of stopping.
 
 use std::sync::Arc;
 use std::sync::atomic::{AtomicBool, Ordering};
@@ -91,6 +92,8 @@ pub struct LevenbergMarquardt {
     pub evaluations: usize,
     done: Option<TerminationReason>,
     stop: Option<Arc<AtomicBool>>,
+    /// Set once forward differences were replaced by central ones (see `next_iter`).
+    central_from_now: bool,
 }
 
 impl LevenbergMarquardt {
@@ -107,6 +110,7 @@ impl LevenbergMarquardt {
             evaluations: 0,
             done: None,
             stop,
+            central_from_now: false,
         }
     }
 
@@ -173,7 +177,12 @@ impl<R: Residuals + ?Sized> Solver<BoundedProblem<'_, R>, LmState> for Levenberg
             .cloned()
             .ok_or_else(|| to_argmin(FitError::Setup("no parameters in the state".into())))?;
         let n = x.len();
-        let (jac, used) = jacobian(p.residuals, p.params, &x, &self.residuals, p.differences)
+        let differences = if self.central_from_now {
+            Differences::Central
+        } else {
+            p.differences
+        };
+        let (jac, used) = jacobian(p.residuals, p.params, &x, &self.residuals, differences)
             .map_err(to_argmin)?;
         self.evaluations += used;
         let r = DVector::from_column_slice(&self.residuals);
@@ -287,6 +296,19 @@ impl<R: Residuals + ?Sized> Solver<BoundedProblem<'_, R>, LmState> for Levenberg
                 state.param(t).cost(self.chi2).jacobian(jac).gradient(gradient),
                 Some(kv),
             )),
+            None if differences == Differences::Forward => {
+                // No step reduces χ² along a forward-difference Jacobian, whose O(h) error
+                // limits how far down the gradient can be followed: go on with central
+                // differences from here (the common remedy; Nocedal and Wright §8.1).
+                self.central_from_now = true;
+                self.lambda = self.settings.initial_lambda;
+                self.nu = 2.0;
+                kv.insert("switch", KvValue::Str("central differences".into()));
+                Ok((
+                    state.param(x).cost(self.chi2).jacobian(jac).gradient(gradient),
+                    Some(kv),
+                ))
+            }
             None => {
                 // No step reduces χ²: at a minimum to the precision of the residuals, or stuck.
                 self.done = Some(if cosine <= 1e-6 {

@@ -17,9 +17,11 @@ pub mod minimise;
 pub mod model;
 pub mod multistart;
 pub mod objective;
+pub mod outcome;
 pub mod parameters;
 pub mod problem;
 pub mod spec;
+pub mod synthetic;
 pub mod profile;
 pub mod uncertainty;
 
