@@ -72,13 +72,25 @@ fn bad_inputs_name_the_file_row_or_key() {
 
     // NaN yield.
     std::fs::write(&weak, original.replace("\n17 ", "\n17 NaN 1 #")).unwrap();
-    fails_with(&base, d, &["demo-weak-alignment.txt", "row 15", "not finite"]);
+    fails_with(
+        &base,
+        d,
+        &["demo-weak-alignment.txt", "row 15", "not finite"],
+    );
     // Negative yield in log mode.
     std::fs::write(&weak, original.replace("\n17 ", "\n17 -1 1 #")).unwrap();
-    fails_with(&base, d, &["demo-weak-alignment.txt", "row 15", "not positive"]);
+    fails_with(
+        &base,
+        d,
+        &["demo-weak-alignment.txt", "row 15", "not positive"],
+    );
     // Data outside the computed range.
     std::fs::write(&weak, original.replace("\n35 ", "\n85 ")).unwrap();
-    fails_with(&base, d, &["demo-weak-alignment.txt", "outside the computed range"]);
+    fails_with(
+        &base,
+        d,
+        &["demo-weak-alignment.txt", "outside the computed range"],
+    );
     // Empty dataset.
     std::fs::write(&weak, "# nothing here\n").unwrap();
     fails_with(&base, d, &["demo-weak-alignment.txt", "empty"]);
@@ -87,7 +99,11 @@ fn bad_inputs_name_the_file_row_or_key() {
     // Unknown parameter address.
     let mut s = base.clone();
     s["parameters"][0]["address"] = json!("target.couplings[0].dipole_au_z");
-    fails_with(&s, d, &["parameters[0].address", "dipole_au_z", "keys there"]);
+    fails_with(
+        &s,
+        d,
+        &["parameters[0].address", "dipole_au_z", "keys there"],
+    );
     // Bounds that exclude the start.
     let mut s = base.clone();
     s["parameters"][1]["lower"] = json!(1.0);
@@ -152,7 +168,14 @@ fn the_demo_fit_recovers_the_generating_values() {
     assert!((0.7..=1.3).contains(&red), "reduced chi2 {red}");
     for (p, (name, t)) in r["parameters"].as_array().unwrap().iter().zip(truth) {
         assert_eq!(p["name"], json!(name));
-        for k in ["value", "std_error", "initial", "lower", "upper", "determined"] {
+        for k in [
+            "value",
+            "std_error",
+            "initial",
+            "lower",
+            "upper",
+            "determined",
+        ] {
             assert!(p.get(k).is_some(), "{name}: no {k}");
         }
         let v = p["value"].as_f64().unwrap();
@@ -170,7 +193,11 @@ fn the_demo_fit_recovers_the_generating_values() {
     let v = serde_json::to_value(z).unwrap();
     let fitted = r["parameters"][0]["value"].as_f64().unwrap();
     assert!((v[2].as_f64().unwrap() - fitted).abs() < 1e-12);
-    assert!(std::fs::read_to_string(d.join("out/fit.svg")).unwrap().contains("<svg"));
+    assert!(
+        std::fs::read_to_string(d.join("out/fit.svg"))
+            .unwrap()
+            .contains("<svg")
+    );
 }
 
 /// A degenerate pair: the laser intensity and the shared intensity calibration factor enter
@@ -185,7 +212,8 @@ fn a_degenerate_pair_is_flagged_in_the_expected_uncertainties() {
         { "address": "target.couplings[0].dipole_au[2]", "lower": 0.0, "upper": 4.0 },
         { "address": "laser.colours[0].intensity_wcm2", "lower": 1.0e14, "upper": 1.5e14 }
     ]);
-    spec["nuisance"] = json!({ "intensity_calibration": { "start": 1.0, "lower": 0.8, "upper": 1.2 } });
+    spec["nuisance"] =
+        json!({ "intensity_calibration": { "start": 1.0, "lower": 0.8, "upper": 1.2 } });
     let p = write(d, &spec);
     Command::cargo_bin("holecast")
         .unwrap()
@@ -204,7 +232,10 @@ fn a_degenerate_pair_is_flagged_in_the_expected_uncertainties() {
     for p in &ps[1..] {
         assert_eq!(p["determined"], json!(false), "{p}");
         assert!(p["std_error"].is_null());
-        assert!(p["note"].as_str().unwrap().contains("do not separate"), "{p}");
+        assert!(
+            p["note"].as_str().unwrap().contains("do not separate"),
+            "{p}"
+        );
     }
 }
 

@@ -66,7 +66,11 @@ fn a_product_pair_is_flagged_and_the_rest_keeps_its_error() {
     .unwrap();
     assert_eq!(u.determined, vec![false, false, true], "{:?}", u.notes);
     assert!(u.std_errors[0].is_none() && u.std_errors[1].is_none());
-    assert!(u.notes[0].as_ref().unwrap().contains("a and b"), "{:?}", u.notes);
+    assert!(
+        u.notes[0].as_ref().unwrap().contains("a and b"),
+        "{:?}",
+        u.notes
+    );
     assert!(u.std_errors[2].unwrap() > 0.0);
     assert!((m.theta[0] * m.theta[1] - 6.0).abs() < 0.05);
 }
@@ -125,8 +129,16 @@ fn straight_line_profile_and_fisher_errors_match_the_closed_forms() {
     let iv = interval(&p, &params, &m.theta, m.chi2, 1, s, fitted.s2, &settings).unwrap();
     let lo = iv.lower.value.unwrap();
     let hi = iv.upper.value.unwrap();
-    assert!((m.theta[1] - lo - s).abs() < 0.02 * s, "{lo} {} {s}", m.theta[1]);
-    assert!((hi - m.theta[1] - s).abs() < 0.02 * s, "{hi} {} {s}", m.theta[1]);
+    assert!(
+        (m.theta[1] - lo - s).abs() < 0.02 * s,
+        "{lo} {} {s}",
+        m.theta[1]
+    );
+    assert!(
+        (hi - m.theta[1] - s).abs() < 0.02 * s,
+        "{hi} {} {s}",
+        m.theta[1]
+    );
 }
 
 #[test]
@@ -163,16 +175,12 @@ fn multistart_reports_both_signs_of_a_sign_ambiguous_parameter() {
             periodic: false,
         },
     ];
-    let starts = run(
-        &p,
-        &params,
-        8,
-        &LmSettings::default(),
-        None,
-        &|_| {},
-        None,
-    );
-    let ok: Vec<_> = starts.runs.iter().filter_map(|(_, m)| m.as_ref().ok()).collect();
+    let starts = run(&p, &params, 8, &LmSettings::default(), None, &|_| {}, None);
+    let ok: Vec<_> = starts
+        .runs
+        .iter()
+        .filter_map(|(_, m)| m.as_ref().ok())
+        .collect();
     let best = ok.iter().min_by(|a, b| a.chi2.total_cmp(&b.chi2)).unwrap();
     let u = analyse(
         &p,
@@ -186,7 +194,12 @@ fn multistart_reports_both_signs_of_a_sign_ambiguous_parameter() {
     )
     .unwrap();
     let minima = distinct(&params, &ok, &u.std_errors, 1e-6 * best.chi2.max(1e-12));
-    assert_eq!(minima.len(), 2, "{:?}", minima.iter().map(|m| &m.theta).collect::<Vec<_>>());
+    assert_eq!(
+        minima.len(),
+        2,
+        "{:?}",
+        minima.iter().map(|m| &m.theta).collect::<Vec<_>>()
+    );
     assert!((minima[0].theta[0] + minima[1].theta[0]).abs() < 1e-5);
 }
 
@@ -196,7 +209,11 @@ fn bounds_hold_a_parameter_and_flag_it() {
     let x: Vec<f64> = (1..10).map(f64::from).collect();
     let p = Closure {
         n: x.len(),
-        f: |t: &[f64]| x.iter().map(|&x| 2.0 * x - t[0] * x + 0.01 * t[1]).collect(),
+        f: |t: &[f64]| {
+            x.iter()
+                .map(|&x| 2.0 * x - t[0] * x + 0.01 * t[1])
+                .collect()
+        },
     };
     let params = vec![
         FreeParameter {

@@ -26,7 +26,10 @@ struct Strd {
 /// `Residual Sum of Squares:   v`, and the data block after the line beginning `Data:   y`
 /// (two columns y, x).
 fn parse(name: &str) -> Strd {
-    let path = format!("{}/tests/data/nist_strd/{name}.dat", env!("CARGO_MANIFEST_DIR"));
+    let path = format!(
+        "{}/tests/data/nist_strd/{name}.dat",
+        env!("CARGO_MANIFEST_DIR")
+    );
     let text = std::fs::read_to_string(&path).unwrap_or_else(|e| panic!("{path}: {e}"));
     let mut starts = [Vec::new(), Vec::new()];
     let (mut certified, mut certified_sd) = (Vec::new(), Vec::new());
@@ -38,7 +41,10 @@ fn parse(name: &str) -> Strd {
         if in_data {
             let cols: Vec<f64> = t
                 .split_whitespace()
-                .map(|c| c.parse().unwrap_or_else(|_| panic!("{path}: data row {t:?}")))
+                .map(|c| {
+                    c.parse()
+                        .unwrap_or_else(|_| panic!("{path}: data row {t:?}"))
+                })
                 .collect();
             if cols.len() == 2 {
                 y.push(cols[0]);
@@ -48,7 +54,10 @@ fn parse(name: &str) -> Strd {
         }
         if t.starts_with('b') && t.contains('=') {
             let (_, rest) = t.split_once('=').unwrap();
-            let v: Vec<f64> = rest.split_whitespace().map(|c| c.parse().unwrap()).collect();
+            let v: Vec<f64> = rest
+                .split_whitespace()
+                .map(|c| c.parse().unwrap())
+                .collect();
             assert_eq!(v.len(), 4, "{path}: {t}");
             starts[0].push(v[0]);
             starts[1].push(v[1]);
@@ -166,7 +175,12 @@ fn check_with(name: &str, model: Model, start: usize, settings: &LmSettings) {
     for (i, (&v, &c)) in o.theta.iter().zip(&d.certified).enumerate() {
         let dp = digits(v, c);
         worst_p = worst_p.min(dp);
-        assert!(dp >= 6.0, "{name} start {} b{}: {v} vs {c} ({dp:.1} digits)", start + 1, i + 1);
+        assert!(
+            dp >= 6.0,
+            "{name} start {} b{}: {v} vs {c} ({dp:.1} digits)",
+            start + 1,
+            i + 1
+        );
         let sd = o.sd[i].unwrap_or_else(|| panic!("{name} b{}: flagged undetermined", i + 1));
         let ds = digits(sd, d.certified_sd[i]);
         worst_sd = worst_sd.min(ds);
@@ -179,7 +193,12 @@ fn check_with(name: &str, model: Model, start: usize, settings: &LmSettings) {
         );
     }
     let dr = digits(o.chi2, d.rss);
-    assert!(dr >= 6.0, "{name}: RSS {} vs {} ({dr:.1} digits)", o.chi2, d.rss);
+    assert!(
+        dr >= 6.0,
+        "{name}: RSS {} vs {} ({dr:.1} digits)",
+        o.chi2,
+        d.rss
+    );
     eprintln!(
         "{name} start {}: parameters >= {worst_p:.1} digits, sd >= {worst_sd:.1} digits, RSS {dr:.1} digits",
         start + 1
@@ -219,7 +238,10 @@ fn boxbod_start_1() {
         o.theta, o.chi2, o.reason, o.sd
     );
     assert!((o.theta[0] - 172.5).abs() < 1e-5 && o.theta[1] > 20.0);
-    assert!(o.sd[1].is_none(), "b2 on the plateau must be flagged undetermined");
+    assert!(
+        o.sd[1].is_none(),
+        "b2 on the plateau must be flagged undetermined"
+    );
     let cautious = LmSettings {
         initial_lambda: 100.0,
         ..LmSettings::default()

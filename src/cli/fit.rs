@@ -82,14 +82,20 @@ struct Loaded {
 fn load(path: &Path) -> Result<Loaded> {
     let text = std::fs::read_to_string(path)
         .with_context(|| format!("cannot read fit file {}", path.display()))?;
-    let spec = FitSpec::from_json(&text).map_err(|e| anyhow!("fit file {}: {e}", path.display()))?;
+    let spec =
+        FitSpec::from_json(&text).map_err(|e| anyhow!("fit file {}: {e}", path.display()))?;
     let dir = path.parent().map(Path::to_path_buf).unwrap_or_default();
     let target = match &spec.target {
         Document::Inline(t) => (**t).clone(),
         Document::Path(p) => {
             let f = dir.join(p);
-            let t = std::fs::read_to_string(&f)
-                .with_context(|| format!("fit file {}: target: cannot read {}", path.display(), f.display()))?;
+            let t = std::fs::read_to_string(&f).with_context(|| {
+                format!(
+                    "fit file {}: target: cannot read {}",
+                    path.display(),
+                    f.display()
+                )
+            })?;
             TargetSpec::from_json(&t).map_err(|e| anyhow!("target file {}: {e}", f.display()))?
         }
     };
@@ -97,8 +103,13 @@ fn load(path: &Path) -> Result<Loaded> {
         Document::Inline(l) => (**l).clone(),
         Document::Path(p) => {
             let f = dir.join(p);
-            let t = std::fs::read_to_string(&f)
-                .with_context(|| format!("fit file {}: laser: cannot read {}", path.display(), f.display()))?;
+            let t = std::fs::read_to_string(&f).with_context(|| {
+                format!(
+                    "fit file {}: laser: cannot read {}",
+                    path.display(),
+                    f.display()
+                )
+            })?;
             serde_json::from_str(&t).map_err(|e| anyhow!("laser file {}: {e}", f.display()))?
         }
     };
@@ -268,7 +279,11 @@ fn print_summary(o: &FitOutcome, out: &Path, quiet: bool) {
         o.chi2,
         o.reduced_chi2,
         o.dof,
-        if o.converged { "converged" } else { "NOT converged" },
+        if o.converged {
+            "converged"
+        } else {
+            "NOT converged"
+        },
         o.termination,
         o.evaluations,
         o.minima.len(),
@@ -289,9 +304,7 @@ fn print_summary(o: &FitOutcome, out: &Path, quiet: bool) {
 }
 
 fn csv_rows(p: &SpectrumFit<'_>, e: &[holecast::fit::objective::Evaluated]) -> String {
-    let mut s = String::from(
-        "dataset,file,row,order,energy_ev,yield,uncertainty,model,residual\n",
-    );
+    let mut s = String::from("dataset,file,row,order,energy_ev,yield,uncertainty,model,residual\n");
     for (d, ev) in p.datasets.iter().zip(e) {
         for i in 0..d.y.len() {
             s.push_str(&format!(
@@ -333,7 +346,9 @@ fn fitted_target(p: &SpectrumFit<'_>, o: &FitOutcome, theta: &[f64]) -> Result<V
                     "{} = {:.6e}{}",
                     p.name,
                     p.value,
-                    p.std_error.map(|s| format!(" ± {s:.2e}")).unwrap_or(" (undetermined)".into())
+                    p.std_error
+                        .map(|s| format!(" ± {s:.2e}"))
+                        .unwrap_or(" (undetermined)".into())
                 ))
                 .collect::<Vec<_>>()
                 .join("; ")
@@ -392,10 +407,13 @@ fn figure(
                 }))
                 .map_err(|e| format!("{e:?}"))?;
             }
-            c.draw_series(data.iter().map(|&(x, y)| Circle::new((x, y), 3, BLACK.filled())))
-                .map_err(|e| format!("{e:?}"))?
-                .label("data")
-                .legend(|(x, y)| Circle::new((x, y), 3, BLACK.filled()));
+            c.draw_series(
+                data.iter()
+                    .map(|&(x, y)| Circle::new((x, y), 3, BLACK.filled())),
+            )
+            .map_err(|e| format!("{e:?}"))?
+            .label("data")
+            .legend(|(x, y)| Circle::new((x, y), 3, BLACK.filled()));
             c.draw_series(LineSeries::new(model.clone(), RED.stroke_width(2)))
                 .map_err(|e| format!("{e:?}"))?
                 .label("model (scaled)")
@@ -473,10 +491,14 @@ fn expected(
         let omega = la.to_field().map_err(|e| anyhow!("{e}"))?.omega();
         let orders = planned_orders(d, base.as_ref().map(|b| b[k].as_str()))?;
         let e: Vec<f64> = orders.iter().map(|q| q * omega).collect();
-        let y = model.yields(&t, &la, &e).map_err(|e| anyhow!("dataset {}: {e}", d.label))?;
+        let y = model
+            .yields(&t, &la, &e)
+            .map_err(|e| anyhow!("dataset {}: {e}", d.label))?;
         let s: Vec<f64> = y.iter().map(|v| noise * v).collect();
         texts.push(table(&[], &orders, &y, &s));
-        d.columns = serde_json::from_value(json!({"x": "order", "yield": "yield", "uncertainty": "uncertainty"}))?;
+        d.columns = serde_json::from_value(
+            json!({"x": "order", "yield": "yield", "uncertainty": "uncertainty"}),
+        )?;
         d.x_unit = holecast::fit::measured::XUnit::Order;
         d.kind = holecast::fit::spec::DataKind::Lines;
         d.relative_uncertainty = None;
@@ -485,8 +507,7 @@ fn expected(
     let problem = SpectrumFit::build(&spec, &l.target, &l.laser, &texts, model)
         .map_err(|e| anyhow!("fit file {}: {e}", l.path.display()))?;
     let theta: Vec<f64> = problem.params.iter().map(|p| p.start).collect();
-    let r = holecast::fit::Residuals::residuals(&problem, &theta)
-        .map_err(|e| anyhow!("{e}"))?;
+    let r = holecast::fit::Residuals::residuals(&problem, &theta).map_err(|e| anyhow!("{e}"))?;
     let u = analyse(
         &problem,
         &problem.params,
@@ -521,7 +542,10 @@ fn expected(
     write_set(
         &args.out,
         "fit-expected",
-        &[("expected.json".to_string(), serde_json::to_vec_pretty(&doc)?)],
+        &[(
+            "expected.json".to_string(),
+            serde_json::to_vec_pretty(&doc)?,
+        )],
         &["expected.json"],
     )?;
     if !global.quiet {
@@ -562,7 +586,9 @@ pub fn synthetic(args: &SyntheticArgs, global: &Global) -> Result<()> {
     let noise = match (args.poisson_peak, args.relative_noise) {
         (Some(p), None) => Noise::Poisson { peak_counts: p },
         (None, Some(f)) => Noise::RelativeGaussian { fraction: f },
-        (None, None) => bail!("choose the noise: --poisson-peak COUNTS or --relative-noise FRACTION"),
+        (None, None) => {
+            bail!("choose the noise: --poisson-peak COUNTS or --relative-noise FRACTION")
+        }
         _ => unreachable!("clap keeps the two apart"),
     };
     let mut sets: Vec<(Address, f64)> = Vec::new();
@@ -610,7 +636,10 @@ pub fn synthetic(args: &SyntheticArgs, global: &Global) -> Result<()> {
         let mut comments = vec![
             "INVENTED synthetic data written by holecast synthetic (not a measurement)".to_string(),
             format!("fit file: {}", args.fit_file.display()),
-            format!("dataset: {}; seed {}; noise {:?}", d.label, args.seed, noise),
+            format!(
+                "dataset: {}; seed {}; noise {:?}",
+                d.label, args.seed, noise
+            ),
         ];
         for (a, v) in &d.conditions {
             comments.push(format!("condition {a} = {v}"));

@@ -182,8 +182,8 @@ impl<R: Residuals + ?Sized> Solver<BoundedProblem<'_, R>, LmState> for Levenberg
         } else {
             p.differences
         };
-        let (jac, used) = jacobian(p.residuals, p.params, &x, &self.residuals, differences)
-            .map_err(to_argmin)?;
+        let (jac, used) =
+            jacobian(p.residuals, p.params, &x, &self.residuals, differences).map_err(to_argmin)?;
         self.evaluations += used;
         let r = DVector::from_column_slice(&self.residuals);
         let g = jac.tr_mul(&r);
@@ -217,7 +217,11 @@ impl<R: Residuals + ?Sized> Solver<BoundedProblem<'_, R>, LmState> for Levenberg
             self.done = Some(TerminationReason::SolverConverged);
             kv.insert("stop", KvValue::Str("gradient".into()));
             return Ok((
-                state.param(x).cost(self.chi2).jacobian(jac).gradient(g.as_slice().to_vec()),
+                state
+                    .param(x)
+                    .cost(self.chi2)
+                    .jacobian(jac)
+                    .gradient(g.as_slice().to_vec()),
                 Some(kv),
             ));
         }
@@ -241,10 +245,8 @@ impl<R: Residuals + ?Sized> Solver<BoundedProblem<'_, R>, LmState> for Levenberg
             for (i, &j) in free.iter().enumerate() {
                 trial[j] = p.params[j].project(x[j] + delta[i]);
             }
-            let step = DVector::from_iterator(
-                n,
-                (0..n).map(|j| p.params[j].difference(trial[j], x[j])),
-            );
+            let step =
+                DVector::from_iterator(n, (0..n).map(|j| p.params[j].difference(trial[j], x[j])));
             let predicted = -(2.0 * step.dot(&g) + (&a * &step).dot(&step));
             self.evaluations += 1;
             let outcome = p
@@ -256,7 +258,11 @@ impl<R: Residuals + ?Sized> Solver<BoundedProblem<'_, R>, LmState> for Levenberg
                 Some(rt) => {
                     let c = chi2(&rt);
                     let actual = self.chi2 - c;
-                    let rho = if predicted > 0.0 { actual / predicted } else { -1.0 };
+                    let rho = if predicted > 0.0 {
+                        actual / predicted
+                    } else {
+                        -1.0
+                    };
                     (rho > 1e-4).then_some((rt, c, actual, predicted, rho, step))
                 }
                 None => None,
@@ -293,7 +299,11 @@ impl<R: Residuals + ?Sized> Solver<BoundedProblem<'_, R>, LmState> for Levenberg
         let gradient = g.as_slice().to_vec();
         match next {
             Some(t) => Ok((
-                state.param(t).cost(self.chi2).jacobian(jac).gradient(gradient),
+                state
+                    .param(t)
+                    .cost(self.chi2)
+                    .jacobian(jac)
+                    .gradient(gradient),
                 Some(kv),
             )),
             None if differences == Differences::Forward => {
@@ -305,7 +315,11 @@ impl<R: Residuals + ?Sized> Solver<BoundedProblem<'_, R>, LmState> for Levenberg
                 self.nu = 2.0;
                 kv.insert("switch", KvValue::Str("central differences".into()));
                 Ok((
-                    state.param(x).cost(self.chi2).jacobian(jac).gradient(gradient),
+                    state
+                        .param(x)
+                        .cost(self.chi2)
+                        .jacobian(jac)
+                        .gradient(gradient),
                     Some(kv),
                 ))
             }
@@ -320,7 +334,11 @@ impl<R: Residuals + ?Sized> Solver<BoundedProblem<'_, R>, LmState> for Levenberg
                     ))
                 });
                 Ok((
-                    state.param(x).cost(self.chi2).jacobian(jac).gradient(gradient),
+                    state
+                        .param(x)
+                        .cost(self.chi2)
+                        .jacobian(jac)
+                        .gradient(gradient),
                     Some(kv),
                 ))
             }

@@ -78,8 +78,7 @@ pub fn integrate_lines(
     let mut errors = Vec::with_capacity(orders.len());
     for &q in orders {
         let (lo, hi) = line_window(q, omega, half_width_orders);
-        let inside: Vec<&(f64, f64, f64)> =
-            pts.iter().filter(|p| p.0 >= lo && p.0 <= hi).collect();
+        let inside: Vec<&(f64, f64, f64)> = pts.iter().filter(|p| p.0 >= lo && p.0 <= hi).collect();
         if inside.len() < 2 {
             return Err(FitError::Data(format!(
                 "{source}: the window of line {q} ({:.3}..{:.3} eV) holds {} measured point(s); \

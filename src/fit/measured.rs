@@ -78,7 +78,10 @@ fn split(line: &str) -> Vec<&str> {
     if line.contains(',') {
         line.split(',').map(str::trim).collect()
     } else if line.contains('\t') {
-        line.split('\t').map(str::trim).filter(|s| !s.is_empty()).collect()
+        line.split('\t')
+            .map(str::trim)
+            .filter(|s| !s.is_empty())
+            .collect()
     } else {
         line.split_whitespace().collect()
     }
@@ -95,8 +98,7 @@ pub fn parse(text: &str, source: &str, columns: &Columns) -> Result<Table, FitEr
             continue;
         }
         let fields = split(line);
-        if header.is_none() && rows.is_empty() && fields.iter().any(|f| f.parse::<f64>().is_err())
-        {
+        if header.is_none() && rows.is_empty() && fields.iter().any(|f| f.parse::<f64>().is_err()) {
             header = Some(fields.iter().map(|s| s.to_string()).collect());
             continue;
         }
@@ -109,7 +111,9 @@ pub fn parse(text: &str, source: &str, columns: &Columns) -> Result<Table, FitEr
         match c {
             Column::Number(n) => {
                 if *n == 0 {
-                    Err(err(format!("column {what} = 0: columns are numbered from 1")))
+                    Err(err(format!(
+                        "column {what} = 0: columns are numbered from 1"
+                    )))
                 } else {
                     Ok(n - 1)
                 }
@@ -142,11 +146,17 @@ pub fn parse(text: &str, source: &str, columns: &Columns) -> Result<Table, FitEr
                 k + 1
             ))
         })?;
-        let v: f64 = text
-            .parse()
-            .map_err(|_| err(format!("row {row}, {what} (column {}): \"{text}\" is not a number", k + 1)))?;
+        let v: f64 = text.parse().map_err(|_| {
+            err(format!(
+                "row {row}, {what} (column {}): \"{text}\" is not a number",
+                k + 1
+            ))
+        })?;
         if !v.is_finite() {
-            return Err(err(format!("row {row}, {what} (column {}): {v} is not finite", k + 1)));
+            return Err(err(format!(
+                "row {row}, {what} (column {}): {v} is not finite",
+                k + 1
+            )));
         }
         Ok(v)
     };
@@ -251,14 +261,18 @@ mod tests {
         // 10 too after the Jacobian (numerical quadrature over the nm axis).
         let omega = units::wavelength_nm_to_omega(800.0);
         let (e0, e1) = (units::ev_to_au(20.0), units::ev_to_au(30.0));
-        let (l0, l1) = (units::wavelength_nm_to_omega(1.0) / e1, units::wavelength_nm_to_omega(1.0) / e0);
+        let (l0, l1) = (
+            units::wavelength_nm_to_omega(1.0) / e1,
+            units::wavelength_nm_to_omega(1.0) / e0,
+        );
         let n = 20000;
         let mut total = 0.0;
         for i in 0..n {
             let l = l0 + (i as f64 + 0.5) * (l1 - l0) / n as f64;
             // density per nm of a spectrum flat at 1 per eV, i.e. au_to_ev(1) per a.u.:
             // f_λ = f_E / |dλ/dE|
-            let per_nm = density_jacobian(1.0, XUnit::Ev, omega) / density_jacobian(l, XUnit::Nm, omega);
+            let per_nm =
+                density_jacobian(1.0, XUnit::Ev, omega) / density_jacobian(l, XUnit::Nm, omega);
             total += per_nm * (l1 - l0) / n as f64;
         }
         assert!((total - 10.0).abs() < 1e-6, "{total}");

@@ -5,7 +5,9 @@ use std::sync::Arc;
 use std::sync::atomic::AtomicBool;
 
 use argmin::core::observers::{Observe, ObserverMode};
-use argmin::core::{Error as ArgminError, Executor, KV, State, TerminationReason, TerminationStatus};
+use argmin::core::{
+    Error as ArgminError, Executor, KV, State, TerminationReason, TerminationStatus,
+};
 use serde::Serialize;
 
 use super::FitError;

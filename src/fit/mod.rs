@@ -20,9 +20,9 @@ pub mod objective;
 pub mod outcome;
 pub mod parameters;
 pub mod problem;
+pub mod profile;
 pub mod spec;
 pub mod synthetic;
-pub mod profile;
 pub mod uncertainty;
 
 pub use levenberg::{LevenbergMarquardt, LmSettings};

@@ -75,9 +75,14 @@ impl SingleMolecule {
     /// The key of everything the trajectory stage depends on (module documentation).
     pub fn stage_key(&self, target: &Target, laser: &LaserSpec, energies: &[f64]) -> String {
         let ips: Vec<u64> = target.channels.iter().map(|c| c.ip.to_bits()).collect();
-        let phase_ion = !matches!(self.settings.ionization_structure, StructurePlacement::Prefactor);
-        let phase_rec =
-            !matches!(self.settings.recombination_structure, StructurePlacement::Prefactor);
+        let phase_ion = !matches!(
+            self.settings.ionization_structure,
+            StructurePlacement::Prefactor
+        );
+        let phase_rec = !matches!(
+            self.settings.recombination_structure,
+            StructurePlacement::Prefactor
+        );
         let shells: Vec<String> = target
             .channels
             .iter()
@@ -155,16 +160,22 @@ impl SpectrumModel for SingleMolecule {
             .to_field()
             .map_err(|e| FitError::Model(format!("laser: {e}")))?;
         let stage = self.stage(&t, laser, &field, energies)?;
-        let s = assemble(&field, &t, &stage, self.settings.linear_fast_path, &|_, _| {})
-            .map_err(|e| FitError::Model(format!("amplitude stage: {e}")))?;
+        let s = assemble(
+            &field,
+            &t,
+            &stage,
+            self.settings.linear_fast_path,
+            &|_, _| {},
+        )
+        .map_err(|e| FitError::Model(format!("amplitude stage: {e}")))?;
         let mut out = Vec::with_capacity(energies.len());
-        for k in 0..energies.len() {
+        for (k, &energy) in energies.iter().enumerate() {
             if !s.complete[k] {
                 return Err(FitError::Model(format!(
                     "the spectrum at {:.4} eV (order {:.3}) is incomplete: a quantum orbit did not \
                      converge ({:?})",
-                    crate::units::au_to_ev(energies[k]),
-                    energies[k] / s.omega,
+                    crate::units::au_to_ev(energy),
+                    energy / s.omega,
                     s.status[k]
                 )));
             }

@@ -85,12 +85,7 @@ pub fn run<R: Residuals + ?Sized>(
 
 /// Whether two points are the same minimum (module rule); `sigma` are the standard errors at
 /// `a` (None where unknown).
-pub fn same_minimum(
-    params: &[FreeParameter],
-    a: &[f64],
-    b: &[f64],
-    sigma: &[Option<f64>],
-) -> bool {
+pub fn same_minimum(params: &[FreeParameter], a: &[f64], b: &[f64], sigma: &[Option<f64>]) -> bool {
     params.iter().enumerate().all(|(j, p)| {
         let d = p.difference(a[j], b[j]).abs();
         let tol = match sigma.get(j).copied().flatten() {

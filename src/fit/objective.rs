@@ -16,7 +16,7 @@ use serde_json::Value;
 
 use super::FitError;
 use super::lines::integrate_lines;
-use super::measured::{self, XUnit, energy};
+use super::measured::{self, energy};
 use super::model::SpectrumModel;
 use super::parameters::FreeParameter;
 use super::problem::Residuals;
@@ -133,7 +133,9 @@ impl<'m> SpectrumFit<'m> {
                     )));
                 }
             };
-            let current = a.get(doc).map_err(|e| FitError::Setup(format!("{key}: {e}")))?;
+            let current = a
+                .get(doc)
+                .map_err(|e| FitError::Setup(format!("{key}: {e}")))?;
             params.push(FreeParameter {
                 name: p.address.clone(),
                 start: p.start.unwrap_or(current),
@@ -185,9 +187,9 @@ impl<'m> SpectrumFit<'m> {
                 }
                 conditions.push((a, *v));
             }
-            let text = tables.get(k).ok_or_else(|| {
-                FitError::Setup(format!("datasets[{k}]: no table text given"))
-            })?;
+            let text = tables
+                .get(k)
+                .ok_or_else(|| FitError::Setup(format!("datasets[{k}]: no table text given")))?;
             datasets.push(load_dataset(
                 spec, k, text, &tdoc, &ldoc, conditions, d.scale,
             )?);
@@ -383,14 +385,24 @@ fn load_dataset(
     let omega = field.omega();
     let (energies, y, sigma, rows) = match d.kind {
         DataKind::Lines => {
-            let e: Vec<f64> = table.x.iter().map(|&x| energy(x, d.x_unit, omega)).collect();
+            let e: Vec<f64> = table
+                .x
+                .iter()
+                .map(|&x| energy(x, d.x_unit, omega))
+                .collect();
             (e, table.y.clone(), table.sigma.clone(), table.rows.clone())
         }
         DataKind::Continuous => {
-            let e: Vec<f64> = table.x.iter().map(|&x| energy(x, d.x_unit, omega)).collect();
+            let e: Vec<f64> = table
+                .x
+                .iter()
+                .map(|&x| energy(x, d.x_unit, omega))
+                .collect();
             let (lo, hi) = e
                 .iter()
-                .fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), &v| (a.min(v), b.max(v)));
+                .fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), &v| {
+                    (a.min(v), b.max(v))
+                });
             let orders = match &d.orders {
                 Some(o) => o.clone(),
                 None => {
@@ -450,7 +462,7 @@ fn load_dataset(
     };
     if spec.fitter.residuals == ResidualMode::Log {
         for (i, v) in y.iter().enumerate() {
-            if !(*v > 0.0) {
+            if v.is_nan() || *v <= 0.0 {
                 return Err(data_err(format!(
                     "{src}: row {}: yield {v} is not positive, which log residuals cannot use \
                      (use \"residuals\": \"linear\" or remove the row)",
@@ -461,7 +473,11 @@ fn load_dataset(
     }
     // Range: above the lowest ionization potential and at most 30 % past the cutoff estimate
     // Ip_max + 3.17 Up of the dataset's field.
-    let ip_min = target.channels.iter().map(|c| c.ip).fold(f64::INFINITY, f64::min);
+    let ip_min = target
+        .channels
+        .iter()
+        .map(|c| c.ip)
+        .fold(f64::INFINITY, f64::min);
     let ip_max = target.channels.iter().map(|c| c.ip).fold(0.0, f64::max);
     let top = 1.3 * (ip_max + 3.17 * field.ponderomotive_energy());
     for (i, &e) in energies.iter().enumerate() {
@@ -479,7 +495,6 @@ fn load_dataset(
         }
     }
     let orders = energies.iter().map(|e| e / omega).collect();
-    let _ = XUnit::Ev;
     Ok(Dataset {
         label: d.label.clone(),
         file: d.file.clone(),

@@ -178,8 +178,12 @@ pub fn run<R: Residuals + ?Sized>(
     )?;
     evaluations += u.evaluations;
     let minima_refs: Vec<&Minimum> = ok.iter().map(|(_, m)| *m).collect();
-    let distinct =
-        multistart::distinct(params, &minima_refs, &u.std_errors, settings.minima_delta_chi2);
+    let distinct = multistart::distinct(
+        params,
+        &minima_refs,
+        &u.std_errors,
+        settings.minima_delta_chi2,
+    );
     let minima = distinct
         .iter()
         .map(|m| MinimumResult {

@@ -72,7 +72,7 @@ impl FreeParameter {
 
     /// The period of a periodic parameter.
     pub fn period(&self) -> Option<f64> {
-        self.periodic.then(|| self.upper - self.lower)
+        self.periodic.then_some(self.upper - self.lower)
     }
 
     /// `x` moved into the allowed set: wrapped into `[lower, upper)` for a periodic parameter,

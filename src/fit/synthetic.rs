@@ -38,12 +38,11 @@ pub enum Noise {
     None,
 }
 
+/// Noisy yields and their uncertainties of one dataset.
+pub type Drawn = (Vec<f64>, Vec<f64>);
+
 /// Noisy yields and their uncertainties for model yields `m` of several datasets.
-pub fn draw(
-    models: &[Vec<f64>],
-    noise: Noise,
-    seed: u64,
-) -> Result<Vec<(Vec<f64>, Vec<f64>)>, FitError> {
+pub fn draw(models: &[Vec<f64>], noise: Noise, seed: u64) -> Result<Vec<Drawn>, FitError> {
     let mut rng = Xoshiro256PlusPlus::seed_from_u64(seed);
     let mut out = Vec::new();
     for m in models {

@@ -97,7 +97,16 @@ pub fn analyse<R: Residuals + ?Sized>(
             c2 / dof as f64
         }
     };
-    Ok(from_jacobian(&jac, params, theta, c2, s2, dof, rcond, evaluations))
+    Ok(from_jacobian(
+        &jac,
+        params,
+        theta,
+        c2,
+        s2,
+        dof,
+        rcond,
+        evaluations,
+    ))
 }
 
 /// The analysis from a Jacobian already at hand.
@@ -140,7 +149,11 @@ pub fn from_jacobian(
         let c = DMatrix::from_fn(k, k, |i, l| a[(set[i], set[l])] * d[i] * d[l]);
         let eig = SymmetricEigen::new(c);
         let max = eig.eigenvalues.iter().cloned().fold(0.0, f64::max);
-        let min = eig.eigenvalues.iter().cloned().fold(f64::INFINITY, f64::min);
+        let min = eig
+            .eigenvalues
+            .iter()
+            .cloned()
+            .fold(f64::INFINITY, f64::min);
         if first {
             eigenvalue_ratio = min / max;
             first = false;
