@@ -239,12 +239,10 @@ impl Frame {
                 }
             }
         }
-        (t0 <= t1).then(|| {
-            (
-                (a.0 + t0 * dx, a.1 + t0 * dy),
-                (a.0 + t1 * dx, a.1 + t1 * dy),
-            )
-        })
+        (t0 <= t1).then_some((
+            (a.0 + t0 * dx, a.1 + t0 * dy),
+            (a.0 + t1 * dx, a.1 + t1 * dy),
+        ))
     }
 
     /// Draws one unbroken run of data points with `style` (clipped to the frame, dashed in
@@ -409,7 +407,7 @@ pub fn decade_ticks(lo: f64, hi: f64) -> Vec<Tick> {
 /// Nice linear ticks (steps 1, 2, 2.5 or 5 × 10ᵏ), about `n` of them, labelled with the
 /// digits the step needs.
 pub fn linear_ticks(lo: f64, hi: f64, n: usize) -> Vec<Tick> {
-    if !(hi > lo) {
+    if hi.partial_cmp(&lo) != Some(std::cmp::Ordering::Greater) {
         return vec![(lo, format!("{lo}"))];
     }
     let raw = (hi - lo) / n.max(1) as f64;

@@ -151,7 +151,7 @@ pub fn hole_figure(s: &MultichannelSpectrum, ctx: &FigureContext) -> Result<Stri
         .fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), p| {
             (a.min(p.0), b.max(p.0))
         });
-    if !(d1 > d0) {
+    if d1.partial_cmp(&d0) != Some(std::cmp::Ordering::Greater) {
         return Err("nothing to plot: no hole data on the plateau".into());
     }
     let pad = 0.02 * (d1 - d0);

@@ -91,15 +91,15 @@ pub(super) struct FamilyRow {
     phase_range: (f64, f64),
 }
 
-/// Unwrapped phase of a contribution along the grid, steered by its own group delay: each step
-/// adds the predicted increment `½(τ_k + τ_{k+1}) ΔΩ` plus the measured difference from it
+/// Unwrapped phase of a contribution along the grid, steered by its emission time: each step
+/// adds the predicted increment `½(τ_k + τ_{k+1}) ΔΩ` (`τ = Re t_r`) plus the measured difference from it
 /// wrapped to `(−π, π]`. Also returns the orders where that difference exceeds π/2 (a jump the
-/// group delay does not predict: a sign change of the dipole, such as a structural minimum).
+/// orbit does not predict: a sign change of the dipole, such as a structural minimum).
 fn unwrapped_phase(s: &MultichannelSpectrum, con: &Contribution) -> (Vec<Option<f64>>, Vec<f64>) {
     let mut out: Vec<Option<f64>> = vec![None; s.energies.len()];
     let mut jumps = Vec::new();
     let mut prev: Option<(usize, f64)> = None;
-    for k in 0..s.energies.len() {
+    for (k, slot) in out.iter_mut().enumerate() {
         let Some(d) = con.dipole[k].filter(|d| norm2(d) > 0.0) else {
             prev = None;
             continue;
@@ -108,7 +108,10 @@ fn unwrapped_phase(s: &MultichannelSpectrum, con: &Contribution) -> (Vec<Option<
         let value = match prev {
             None => raw,
             Some((j, pj)) => {
-                let slope = |i: usize| con.group_delay[i].or(con.emission_time[i]);
+                // Re t_r is the smooth part of dφ/dΩ (the saddle's own clock); the family's
+                // group delay also carries the structure's phase, which spikes where the
+                // dipole changes sign, so it would hide exactly the steps worth showing.
+                let slope = |i: usize| con.emission_time[i].or(con.group_delay[i]);
                 let predicted = match (slope(j), slope(k)) {
                     (Some(a), Some(b)) => 0.5 * (a + b) * (s.energies[k] - s.energies[j]),
                     _ => 0.0,
@@ -122,7 +125,7 @@ fn unwrapped_phase(s: &MultichannelSpectrum, con: &Contribution) -> (Vec<Option<
                 value
             }
         };
-        out[k] = Some(value);
+        *slot = Some(value);
         prev = Some((k, value));
     }
     (out, jumps)
@@ -221,7 +224,7 @@ pub(super) fn family_rows(
         let mut fit_line = None;
         let mut clipped = 0usize;
         let mut attochirp_text = None;
-        let mut jump_notes: Vec<String> = Vec::new();
+        let mut jump_notes: Vec<(String, Vec<i32>)> = Vec::new();
         let mut circle_stride = 1;
         for (j, (con, _)) in members.iter().enumerate() {
             let style = LineStyle::nth(j).with_dots(false);
@@ -239,13 +242,11 @@ pub(super) fn family_rows(
             let (phase, jumps) = unwrapped_phase(s, con);
             if !jumps.is_empty() {
                 let list: Vec<String> = jumps.iter().map(|q| format!("H{q:.1}")).collect();
-                jump_notes.push(format!(
-                    "half cycle {}: phase steps the group delay does not predict (over π/2) \
-                     at {} — a sign change of the dipole, e.g. a structural minimum; such a step \
-                     is ambiguous by 2π",
-                    con.half_cycle,
-                    list.join(", ")
-                ));
+                let list = list.join(", ");
+                match jump_notes.iter_mut().find(|(l, _)| *l == list) {
+                    Some((_, hcs)) => hcs.push(con.half_cycle),
+                    None => jump_notes.push((list, vec![con.half_cycle])),
+                }
             }
             let in_plateau = |k: usize| plateau_top.is_none_or(|top| s.energies[k] <= top);
             // Linear part of the phase over the plateau (rad vs a.u. energy).
@@ -369,8 +370,14 @@ pub(super) fn family_rows(
                  cutoff, where the uniform sum mixes both orbits)"
             )));
         }
-        for n in jump_notes {
-            entries.push(Entry::note(n));
+        for (list, hcs) in jump_notes {
+            let hcs: Vec<String> = hcs.iter().map(i32::to_string).collect();
+            entries.push(Entry::note(format!(
+                "half cycle {}: phase steps over π/2 that Re t_r does not predict at {list} — a \
+                 sign change of the dipole, e.g. a structural minimum (each step is ambiguous by \
+                 2π)",
+                hcs.join(", ")
+            )));
         }
         if let Some(n) = note {
             entries.push(Entry::note(n));
