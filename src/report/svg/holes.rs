@@ -27,7 +27,8 @@ const FRAME_H: f64 = 250.0;
 const ABOVE: f64 = 34.0;
 const BELOW: f64 = 56.0;
 
-/// Populations below this are not drawn (counted in the legend).
+/// Populations and coherence moduli below this (10⁻⁶, as the legends say) are not drawn
+/// (counted or named in the legend).
 pub const SMALLEST_POPULATION: f64 = 1e-6;
 
 /// A curve against delay.
@@ -173,7 +174,7 @@ pub fn hole_figure(s: &MultichannelSpectrum, ctx: &FigureContext) -> Result<Stri
     }
     if tiny > 0 {
         notes.push(Entry::note(format!(
-            "{tiny} population values below {SMALLEST_POPULATION:e} not drawn"
+            "{tiny} population values below 10⁻⁶ not drawn"
         )));
     }
     // Curves with nothing on the scale are named in a note instead of the legend.
@@ -190,14 +191,28 @@ pub fn hole_figure(s: &MultichannelSpectrum, ctx: &FigureContext) -> Result<Stri
         if !empty.is_empty() {
             let names: Vec<String> = empty.iter().map(|c| c.label.clone()).collect();
             e.push(Entry::note(format!(
-                "not drawn: {} (below {SMALLEST_POPULATION:e} everywhere, zero up to rounding: \
-                 e.g. forbidden by the symmetry of the ensemble)",
+                "not drawn: {} (below 10⁻⁶ everywhere, zero up to rounding: e.g. forbidden by \
+                 the symmetry of the ensemble)",
                 names.join(", ")
             )));
         }
         e.extend(extra.iter().cloned());
         e
     };
+    let drawable = |c: &Series| {
+        c.pts
+            .iter()
+            .any(|p| p.1.is_finite() && p.1.abs() >= SMALLEST_POPULATION)
+    };
+    let coherent = mods.iter().any(drawable);
+    if !mods.is_empty() && !coherent {
+        let names: Vec<String> = mods.iter().map(|c| c.label.clone()).collect();
+        notes.push(Entry::note(format!(
+            "no coherence panels: {} below 10⁻⁶ everywhere (zero up to rounding, e.g. forbidden \
+             by the symmetry of the ensemble)",
+            names.join(", ")
+        )));
+    }
     let pop_legend = legend_of(&pops, &notes);
     let mod_legend = legend_of(&mods, &[]);
     let arg_legend = legend_of(
@@ -206,7 +221,6 @@ pub fn hole_figure(s: &MultichannelSpectrum, ctx: &FigureContext) -> Result<Stri
             "interaction picture, without the Bohr phases e^{−i(Ip_m − Ip_n)t}",
         )],
     );
-    let coherent = !mods.is_empty();
     let block =
         |e: &[Entry]| (ABOVE + FRAME_H + BELOW).max(legend::height(e, LEGEND_WIDTH) + ABOVE + 10.0);
     let title_h = title_height(ctx);

@@ -124,11 +124,8 @@ pub fn spectrum_figure(s: &MultichannelSpectrum, ctx: &FigureContext) -> Result<
                 LineStyle {
                     colour: GREY,
                     width: 1,
-                    dash: if i % 2 == 0 {
-                        Dash::Dashed
-                    } else {
-                        Dash::DashDot
-                    },
+                    // The first marker (classical cutoff) dashed, the others in turn.
+                    dash: [Dash::Dashed, Dash::DashDot, Dash::Dotted, Dash::Solid][i % 4],
                     dots: false,
                 },
                 format!(

@@ -366,8 +366,9 @@ pub(super) fn family_rows(
         }
         if clipped > 0 {
             entries.push(Entry::note(format!(
-                "{clipped} group delays outside the emission-time range not drawn (near the \
-                 cutoff, where the uniform sum mixes both orbits)"
+                "{clipped} group delay{} outside the emission-time range not drawn (near the \
+                 cutoff, where the uniform sum mixes both orbits)",
+                if clipped == 1 { "" } else { "s" }
             )));
         }
         for (list, hcs) in jump_notes {
