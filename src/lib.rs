@@ -8,6 +8,7 @@ pub mod cutoff;
 pub mod dipole;
 pub mod error;
 pub mod field;
+pub mod grid;
 pub mod hole;
 pub mod ionization;
 pub mod laser;

@@ -145,7 +145,9 @@ fn spectrum_writes_json_csv_and_svg_deterministically() {
     }
     let v = json(&std::fs::read(a.join("spectrum.json")).unwrap());
     let points = v["points"].as_array().unwrap();
-    assert!(points.len() > 20);
+    // The default grid of a symmetric field: odd orders from Ip + Up/4 to 20% past the cutoff
+    // (H11–H33 here; it held every order from H8 before issue 9).
+    assert!(points.len() >= 10, "{} rows", points.len());
     assert!(points.iter().all(|p| p["complete"].as_bool().unwrap()));
     // CSV has the same columns as the JSON rows (complex split into _re/_im).
     let csv = std::fs::read_to_string(a.join("spectrum.csv")).unwrap();

@@ -14,7 +14,7 @@ use holecast::multichannel::{
     assemble, trajectory_stage,
 };
 use holecast::orbits::{ChannelPair, OrbitSettings};
-use holecast::report::{self, Cell, orbits::LabelledTable, svg::Marker};
+use holecast::report::{self, Cell, orbits::LabelledTable};
 use holecast::status::RowStatus;
 use holecast::units;
 use holecast::validity::{self, Warning, WarningKind};
@@ -25,6 +25,7 @@ use super::args::{
     MomentumArg, OrbitsArgs, SpectrumArgs, StructureArg, SumArg, TargetArgs,
 };
 use super::describe::{ChannelSummary, metadata, reference};
+use super::figures::{RunDescription, context};
 use super::limits::{Limits, hint};
 use super::output::{Written, write_atomic, write_set};
 use super::progress::Progress;
@@ -200,14 +201,14 @@ pub fn orbits(args: &OrbitsArgs, global: &Global) -> Result<()> {
     let mut warnings = Warnings::default();
     let summaries = summarise(&loaded, global, true, &mut warnings)?;
     warnings.extend(field_warnings(&loaded));
-    let r = &summaries[reference(&summaries)];
     let field = &loaded.field;
     let energies = settings::energies(
         &args.grid,
         field,
-        r.channel.ip,
+        &loaded.laser,
+        &loaded.target.target,
         &all_cutoffs(&summaries),
-        &global.limits.orbits,
+        &loaded.orbit,
     )?;
     let channels = validity::channels_of(&loaded.target.target);
     warnings.extend(validity::grid_warnings(field, &channels, &energies));
@@ -336,6 +337,8 @@ fn orbit_text(rows: &report::Table) -> String {
 struct Run {
     target: LoadedTarget,
     meta: Map<String, Value>,
+    laser: LaserSpec,
+    orbit: OrbitSettings,
     field: Field,
     summaries_cutoff: Cutoffs,
     spectrum: MultichannelSpectrum,
@@ -440,9 +443,10 @@ fn run(
     let energies = settings::energies(
         grid,
         field,
-        r.channel.ip,
+        &loaded.laser,
+        &loaded.target.target,
         &all_cutoffs(&summaries),
-        &global.limits.orbits,
+        &loaded.orbit,
     )?;
     let t = &loaded.target.target;
     warnings.extend(validity::grid_warnings(
@@ -575,6 +579,8 @@ fn run(
     Ok(Run {
         target: loaded.target,
         meta,
+        laser: loaded.laser,
+        orbit: loaded.orbit,
         field: loaded.field,
         summaries_cutoff: cutoff,
         spectrum,
@@ -670,13 +676,26 @@ fn hole_files(run: &Run, rows: &report::Table, summary: &Value) -> Vec<(String, 
     ]
 }
 
+/// The figure context of a run (title block, axes, cutoffs).
+fn figure_context(run: &Run, what: &str) -> report::svg::FigureContext {
+    context(
+        &RunDescription {
+            target: &run.target.target,
+            laser: &run.laser,
+            field: &run.field,
+            orbit: &run.orbit,
+            cutoff: &run.summaries_cutoff,
+            reference: run.spectrum.reference,
+            approximations: run.meta.get("approximations").unwrap_or(&Value::Null),
+        },
+        what,
+    )
+}
+
 /// The hole figure, or a warning if it cannot be drawn.
 fn hole_svg(run: &mut Run) -> Option<(String, Vec<u8>)> {
-    let title = format!(
-        "{} — hole populations vs return delay",
-        run.target.target.name
-    );
-    match report::svg::hole_figure(&run.spectrum, &title) {
+    let ctx = figure_context(run, "hole density decoded by each harmonic");
+    match report::svg::hole_figure(&run.spectrum, &ctx) {
         Ok(svg) => Some(("holes.svg".into(), svg.into_bytes())),
         Err(e) => {
             run.warnings.push(
@@ -760,29 +779,8 @@ pub fn spectrum(args: &SpectrumArgs, global: &Global) -> Result<()> {
     )?;
     let rows = report::spectrum::rows(&run.spectrum).map_err(|e| anyhow!(e))?;
     let summary = summarise_rows(&mut run, &rows);
-    let omega = run.field.omega();
-    let mut markers = vec![Marker {
-        label: "classical cutoff".into(),
-        order: run.summaries_cutoff.classical / omega,
-    }];
-    if let Some(q) = run.summaries_cutoff.quantum {
-        markers.push(Marker {
-            label: "quantum cutoff".into(),
-            order: q / omega,
-        });
-    }
-    let title = format!(
-        "{} — {:.0} nm, Up = {:.2} eV ({} sum)",
-        run.target.target.name,
-        units::omega_to_wavelength_nm(omega),
-        units::au_to_ev(run.field.ponderomotive_energy()),
-        match (args.method, args.sum) {
-            (MethodArg::Quadrature, _) => "quadrature, no",
-            (MethodArg::Saddle, None | Some(SumArg::Uniform)) => "uniform",
-            (MethodArg::Saddle, Some(SumArg::Plain)) => "plain",
-        }
-    );
-    let svg = match report::svg::spectrum_figure(&run.spectrum, &markers, &title) {
+    let ctx = figure_context(&run, "harmonic spectrum");
+    let svg = match report::svg::spectrum_figure(&run.spectrum, &ctx) {
         Ok(svg) => Some(("spectrum.svg".to_string(), svg.into_bytes())),
         Err(e) => {
             run.warnings.push(

@@ -6,9 +6,11 @@ use std::path::{Path, PathBuf};
 use anyhow::{Context, Result, anyhow, bail};
 
 use holecast::cutoff::Cutoffs;
+use holecast::cutoff::try_cutoffs;
 use holecast::field::{Field, TimeStructure};
-use holecast::laser::LaserSpec;
-use holecast::orbits::{WorkLimits, budget};
+use holecast::grid::default_grid;
+use holecast::laser::{EnvelopeSpec, LaserSpec};
+use holecast::orbits::{ChannelPair, OrbitSettings, WorkLimits, budget};
 use holecast::target::{Target, TargetSpec};
 use holecast::units;
 
@@ -159,16 +161,20 @@ fn grid_points(a: f64, b: f64, s: f64) -> Vec<f64> {
     (0..=n).map(|k| a + s * k as f64).collect()
 }
 
-/// The photon energies (a.u.) requested, or the default range: from the first order above the
-/// lowest Ip `ip` to 20% past the highest cutoff among `cutoffs` (one per channel). The number
-/// of points is checked against `limits` before the grid is built.
+/// The photon energies (a.u.) requested, or the default grid of [`holecast::grid`]: odd orders
+/// for a half-wave symmetric field and an inversion-symmetric target, from a margin above the
+/// highest Ip to 20% past the highest cutoff (for a pulse, that of the continuous field with the
+/// same colours, so that the grid does not depend on the CEP). The number of points is checked
+/// against `limits` before the grid is built.
 pub fn energies(
     args: &GridArgs,
     field: &Field,
-    ip: f64,
+    laser: &LaserSpec,
+    target: &Target,
     cutoffs: &[Cutoffs],
-    limits: &WorkLimits,
+    orbit: &OrbitSettings,
 ) -> Result<Vec<f64>> {
+    let limits = &orbit.limits;
     let omega = field.omega();
     if let Some(text) = &args.orders {
         let (a, b, s) = parse_range(text, "--orders", 1.0, omega, limits)?;
@@ -185,26 +191,54 @@ pub fn energies(
             .map(units::ev_to_au)
             .collect());
     }
-    let step = match field.structure() {
-        TimeStructure::Periodic { .. } => 1.0,
-        TimeStructure::Pulse { .. } => 0.1,
-    };
-    let first = ((ip / omega) / step).floor() * step + step;
-    let top = 1.2
-        * cutoffs
-            .iter()
-            .map(|c| c.quantum.unwrap_or(c.classical))
-            .fold(0.0, f64::max)
-        / omega;
-    let last = top.max(first + step);
+    let top = grid_cutoff(field, laser, target, cutoffs, orbit);
+    let grid = default_grid(field, target, top)?;
+    let (first, last, step) = grid.bounds();
     budget::check_grid(first, last, step, limits).map_err(|e| {
         anyhow::Error::new(e).context(format!(
-            "default grid (orders H{first:.1} to H{last:.4e}: from the first above Ip to 20% past \
-             the cutoff, step {step}; choose one with --orders FIRST:LAST:STEP)"
+            "default grid (orders H{first:.1} to H{last:.4e}: {}; choose one with --orders \
+             FIRST:LAST:STEP)",
+            grid.rule()
         ))
     })?;
-    Ok(grid_points(first, last, step)
-        .into_iter()
-        .map(|q| q * omega)
-        .collect())
+    Ok(grid.orders().into_iter().map(|q| q * omega).collect())
+}
+
+/// The cutoff (a.u.) the default grid reaches 20% past: the highest channel cutoff of the
+/// field (quantum where found, else classical); for a pulse, that of the continuous field with
+/// the same colours and phases, whose cutoff does not depend on the carrier-envelope phase (a
+/// CEP only shifts a continuous one-colour field in time). Where the continuous field cannot be
+/// built (incommensurate colours) or its cutoff search fails, the monochromatic estimate
+/// `3.17 Up + 1.32 Ip_max` (Lewenstein et al., PRA 49, 2117 (1994)) of the pulse's peak Up,
+/// also independent of the CEP.
+fn grid_cutoff(
+    field: &Field,
+    laser: &LaserSpec,
+    target: &Target,
+    cutoffs: &[Cutoffs],
+    orbit: &OrbitSettings,
+) -> f64 {
+    let best = |cs: &[Cutoffs]| {
+        cs.iter()
+            .map(|c| c.quantum.unwrap_or(c.classical))
+            .fold(0.0, f64::max)
+    };
+    match field.structure() {
+        TimeStructure::Periodic { .. } => best(cutoffs),
+        TimeStructure::Pulse { .. } => {
+            let ip_max = target.channels.iter().map(|c| c.ip).fold(0.0, f64::max);
+            let estimate = 3.17 * field.ponderomotive_energy() + 1.32 * ip_max;
+            let mut continuous = laser.clone();
+            continuous.envelope = EnvelopeSpec::Continuous {};
+            let Ok(cw) = continuous.to_field() else {
+                return estimate;
+            };
+            let found: Option<Vec<Cutoffs>> = target
+                .channels
+                .iter()
+                .map(|c| try_cutoffs(&cw, ChannelPair::single(c.ip), orbit).ok())
+                .collect();
+            found.map_or(estimate, |cs| best(&cs))
+        }
+    }
 }
