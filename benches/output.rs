@@ -88,7 +88,13 @@ fn benches(c: &mut Criterion) {
     group.throughput(Throughput::Elements(n as u64));
     group.bench_function("orbits_rows_only", |b| {
         b.iter(|| {
-            black_box(report::each_row(&rows, |_, r| Ok(black_box(r.cells().len()))).unwrap())
+            black_box(
+                report::each_row(&rows, |_, r| {
+                    black_box(r.cells().len());
+                    Ok(())
+                })
+                .unwrap(),
+            )
         })
     });
     group.bench_function("orbits_json", |b| {

@@ -303,11 +303,11 @@ pub fn orbits(args: &OrbitsArgs, global: &Global) -> Result<()> {
 
 /// Readable text of the orbit rows, streamed.
 fn orbit_text(rows: &dyn RowSource, w: &mut dyn std::io::Write) -> std::io::Result<()> {
-    writeln!(
-        w,
+    let header = format!(
         "{:>6} {:>8} {:<16} {:>4} {:>26} {:>26} {:>28} {:>5}  {}",
         "pair", "order", "family", "hc", "t_ion (fs)", "t_ret (fs)", "action Φ", "conv", "status"
-    )?;
+    );
+    writeln!(w, "{header}")?;
     let num = |c: Option<&Cell>| match c {
         Some(Cell::Real(Some(x))) => format!("{x:.2}"),
         Some(Cell::Exact(d)) => d.to_string(),
