@@ -37,6 +37,10 @@ pub fn check(args: &CheckArgs, global: &Global) -> Result<()> {
         &loaded.field,
         &summaries,
     );
+    meta.insert(
+        "provenance".into(),
+        super::provenance::provenance(&loaded, None, Value::Null),
+    );
     meta.insert("warnings".into(), warnings.json());
     match args.format {
         CheckFormat::Json => {

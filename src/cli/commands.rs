@@ -14,7 +14,10 @@ use holecast::multichannel::{
     assemble, trajectory_stage,
 };
 use holecast::orbits::{ChannelPair, OrbitSettings};
-use holecast::report::{self, Cell, orbits::LabelledTable};
+use holecast::report::lattice::Lattice;
+use holecast::report::orbits::{LabelledTable, OrbitRows};
+use holecast::report::spectrum::{HoleRows, SpectrumRows};
+use holecast::report::{self, Cell, RowSource};
 use holecast::status::RowStatus;
 use holecast::units;
 use holecast::validity::{self, Warning, WarningKind};
@@ -27,9 +30,10 @@ use super::args::{
 use super::describe::{ChannelSummary, metadata, reference};
 use super::figures::{RunDescription, context};
 use super::limits::{Limits, hint};
-use super::output::{Written, write_atomic, write_set};
+use super::output::{Producer, Written, write_atomic, write_set, write_stdout};
 use super::progress::Progress;
-use super::settings::{self, LoadedTarget};
+use super::provenance::provenance;
+use super::settings::{self, InputFile, LoadedTarget};
 use super::warnings::Warnings;
 
 /// Options that apply to every command.
@@ -55,6 +59,8 @@ pub struct Loaded {
     pub target: LoadedTarget,
     /// The laser as given (after the command-line overrides).
     pub laser: LaserSpec,
+    /// The laser file's record (None for a laser from the command line).
+    pub laser_input: Option<InputFile>,
     /// The field.
     pub field: Field,
     /// Trajectory-stage settings (returns, work limits).
@@ -78,7 +84,7 @@ pub fn load(
     global: &Global,
 ) -> Result<Loaded> {
     let target = settings::target(target)?;
-    let (spec, field) = settings::laser(laser)?;
+    let (spec, field, laser_input) = settings::laser(laser)?;
     validity::check_representable(&field, &validity::channels_of(&target.target))?;
     let mut orbit = OrbitSettings::default();
     orbit.discovery.max_returns = check_returns(returns)?;
@@ -86,6 +92,7 @@ pub fn load(
     Ok(Loaded {
         target,
         laser: spec,
+        laser_input,
         field,
         orbit,
     })
@@ -175,17 +182,17 @@ fn all_cutoffs(summaries: &[ChannelSummary<'_>]) -> Vec<Cutoffs> {
     summaries.iter().filter_map(|s| s.cutoffs).collect()
 }
 
-/// Counts of a text column of a table.
-fn counts(table: &report::Table, column: &str) -> BTreeMap<String, usize> {
-    let mut out = BTreeMap::new();
-    if let Some(i) = table.columns.iter().position(|c| c == column) {
-        for r in &table.rows {
-            if let Cell::Text(t) = &r[i] {
-                *out.entry(t.clone()).or_insert(0) += 1;
-            }
-        }
+/// Counts of a text column over the rows (a pass that builds each row and keeps none).
+fn counts(rows: &dyn RowSource, column: &str) -> Result<BTreeMap<String, usize>> {
+    report::count_text(rows, column).map_err(|e| anyhow!(e))
+}
+
+/// Writes a file or standard output (`None`), streamed.
+fn write_out(out: Option<&std::path::Path>, produce: Producer<'_>) -> Result<()> {
+    match out {
+        Some(path) => write_atomic(path, produce),
+        None => write_stdout(produce),
     }
-    out
 }
 
 fn count_text(c: &BTreeMap<String, usize>) -> String {
@@ -202,7 +209,7 @@ pub fn orbits(args: &OrbitsArgs, global: &Global) -> Result<()> {
     let summaries = summarise(&loaded, global, true, &mut warnings)?;
     warnings.extend(field_warnings(&loaded));
     let field = &loaded.field;
-    let energies = settings::energies(
+    let grid = settings::energies(
         &args.grid,
         field,
         &loaded.laser,
@@ -210,8 +217,9 @@ pub fn orbits(args: &OrbitsArgs, global: &Global) -> Result<()> {
         &all_cutoffs(&summaries),
         &loaded.orbit,
     )?;
+    let energies = &grid.energies;
     let channels = validity::channels_of(&loaded.target.target);
-    warnings.extend(validity::grid_warnings(field, &channels, &energies));
+    warnings.extend(validity::grid_warnings(field, &channels, energies));
     let settings = MultichannelSettings {
         orbits: loaded.orbit,
         group_delay_step: None,
@@ -222,7 +230,7 @@ pub fn orbits(args: &OrbitsArgs, global: &Global) -> Result<()> {
         "solving quantum orbits at {} energies",
         energies.len()
     ));
-    let stage = trajectory_stage(field, t, &energies, &settings);
+    let stage = trajectory_stage(field, t, energies, &settings);
     spinner.finish_and_clear();
     let stage = stage?;
     let tables: Vec<LabelledTable<'_>> = stage
@@ -234,9 +242,14 @@ pub fn orbits(args: &OrbitsArgs, global: &Global) -> Result<()> {
             table: &p.table,
         })
         .collect();
-    let rows = report::orbits::rows(&tables, field.omega(), args.include_excluded)
-        .map_err(|e| anyhow!(e))?;
-    let status = counts(&rows, "status");
+    let rows = OrbitRows {
+        tables: &tables,
+        omega: field.omega(),
+        grid: Some(&grid.lattice),
+        include_excluded: args.include_excluded,
+    };
+    let status = rows.status_counts();
+    let row_count: usize = status.values().sum();
     let failed: usize = status
         .iter()
         .filter(|(k, _)| k.starts_with("failed"))
@@ -259,78 +272,87 @@ pub fn orbits(args: &OrbitsArgs, global: &Global) -> Result<()> {
             "look at the validity warnings; a finer --orders step helps the continuation",
         );
     }
-    let text = match args.format {
+    let produce: Producer<'_> = match args.format {
         super::args::Format::Json => {
             let mut meta = metadata("orbits", &loaded.target, &loaded.laser, field, &summaries);
+            meta.insert(
+                "provenance".into(),
+                provenance(
+                    &loaded,
+                    Some(&grid.lattice),
+                    json!({
+                        "method": "saddle",
+                        "method_note": "quantum orbits only: the saddle points (complex ionization and return times) of each channel pair, found by Newton's method with continuation along the photon energy; no dipole is computed",
+                        "returns": loaded.orbit.discovery.max_returns,
+                    }),
+                ),
+            );
             meta.insert("warnings".into(), warnings.json());
             meta.insert(
                 "summary".into(),
-                json!({"rows": rows.rows.len(), "status": status}),
+                json!({"rows": row_count, "status": status}),
             );
-            report::json::document(meta, "orbits", &rows)
+            Box::new(move |w| report::json::write(&meta, "orbits", &rows, w).map(|_| ()))
         }
-        super::args::Format::Csv => report::csv::document(&rows),
-        super::args::Format::Table => orbit_text(&rows),
+        super::args::Format::Csv => Box::new(|w| report::csv::write(&rows, w).map(|_| ())),
+        super::args::Format::Table => Box::new(|w| orbit_text(&rows, w)),
     };
-    match &args.out {
-        Some(path) => write_atomic(path, text.as_bytes())?,
-        None => print!("{text}"),
-    }
+    write_out(args.out.as_deref(), produce)?;
     warnings.print();
     Ok(())
 }
 
-/// Readable text of the orbit rows.
-fn orbit_text(rows: &report::Table) -> String {
-    let col = |name: &str| rows.columns.iter().position(|c| c == name);
-    let pick = [
-        "ionized_channel",
-        "recombined_channel",
-        "order",
-        "family",
-        "half_cycle",
-        "t_ion_fs",
-        "t_ret_fs",
-        "action",
-        "converged",
-        "status",
-    ];
-    let idx: Vec<Option<usize>> = pick.iter().map(|n| col(n)).collect();
-    let mut out = format!(
-        "{:>6} {:>8} {:<16} {:>4} {:>26} {:>26} {:>28} {:>5}  {}\n",
+/// Readable text of the orbit rows, streamed.
+fn orbit_text(rows: &dyn RowSource, w: &mut dyn std::io::Write) -> std::io::Result<()> {
+    let header = format!(
+        "{:>6} {:>8} {:<16} {:>4} {:>26} {:>26} {:>28} {:>5}  {}",
         "pair", "order", "family", "hc", "t_ion (fs)", "t_ret (fs)", "action Φ", "conv", "status"
     );
-    for r in &rows.rows {
-        let cell = |i: usize| idx[i].map(|j| &r[j]);
-        let num = |c: Option<&Cell>| match c {
-            Some(Cell::Real(Some(x))) => format!("{x:.2}"),
-            Some(Cell::Int(i)) => i.to_string(),
-            Some(Cell::Text(t)) => t.clone(),
-            Some(Cell::Bool(b)) => {
-                if *b {
-                    "yes".into()
-                } else {
-                    "NO".into()
-                }
+    writeln!(w, "{header}")?;
+    let num = |c: Option<&Cell>| match c {
+        Some(Cell::Real(Some(x))) => format!("{x:.2}"),
+        Some(Cell::Exact(d)) => d.to_string(),
+        Some(Cell::Int(i)) => i.to_string(),
+        Some(Cell::Text(t)) => t.clone(),
+        Some(Cell::Bool(b)) => {
+            if *b {
+                "yes".into()
+            } else {
+                "NO".into()
             }
-            Some(Cell::Complex(Some(z))) => format!("{:+.5} {:+.5}i", z.re, z.im),
-            _ => "-".into(),
-        };
-        let pair = format!("{}→{}", num(cell(0)), num(cell(1)));
-        out.push_str(&format!(
-            "{:>6} {:>8} {:<16} {:>4} {:>26} {:>26} {:>28} {:>5}  {}\n",
+        }
+        _ => "-".into(),
+    };
+    let complex = |r: &report::Row, name: &str| match (
+        r.get(&format!("{name}_re")),
+        r.get(&format!("{name}_im")),
+    ) {
+        (Some(Cell::Real(Some(re))), Some(Cell::Real(Some(im)))) => {
+            format!("{re:+.5} {im:+.5}i")
+        }
+        _ => "-".into(),
+    };
+    report::each_row(rows, |_, r| {
+        let pair = format!(
+            "{}→{}",
+            num(r.get("ionized_channel")),
+            num(r.get("recombined_channel"))
+        );
+        writeln!(
+            w,
+            "{:>6} {:>8} {:<16} {:>4} {:>26} {:>26} {:>28} {:>5}  {}",
             pair,
-            num(cell(2)),
-            num(cell(3)),
-            num(cell(4)),
-            num(cell(5)),
-            num(cell(6)),
-            num(cell(7)),
-            num(cell(8)),
-            num(cell(9))
-        ));
-    }
-    out
+            num(r.get("order")),
+            num(r.get("family")),
+            num(r.get("half_cycle")),
+            complex(r, "t_ion_fs"),
+            complex(r, "t_ret_fs"),
+            complex(r, "action"),
+            num(r.get("converged")),
+            num(r.get("status"))
+        )
+    })
+    .map(|_| ())
 }
 
 /// Everything a spectrum or holes run produced.
@@ -343,6 +365,7 @@ struct Run {
     summaries_cutoff: Cutoffs,
     spectrum: MultichannelSpectrum,
     energies: Vec<f64>,
+    grid: Lattice,
     warnings: Warnings,
 }
 
@@ -440,7 +463,7 @@ fn run(
     warnings.extend(field_warnings(&loaded));
     let r = &summaries[reference(&summaries)];
     let field = &loaded.field;
-    let energies = settings::energies(
+    let settings::Grid { energies, lattice } = settings::energies(
         grid,
         field,
         &loaded.laser,
@@ -561,7 +584,10 @@ fn run(
             v
         }
     };
-    meta.insert("approximations".into(), approximations);
+    meta.insert(
+        "provenance".into(),
+        provenance(&loaded, Some(&lattice), approximations),
+    );
     meta.insert("orientations_summed".into(), json!(spectrum.orientations));
     if let Some(w) = workload {
         meta.insert(
@@ -585,6 +611,7 @@ fn run(
         summaries_cutoff: cutoff,
         spectrum,
         energies,
+        grid: lattice,
         warnings,
     })
 }
@@ -604,9 +631,18 @@ fn failure_reasons(s: &MultichannelSpectrum) -> BTreeMap<String, usize> {
 
 /// The run summary, from the rows' `status` column (the one definition of a complete row) and
 /// the families' statuses; warnings for incomplete, failed and non-finite rows.
-fn summarise_rows(run: &mut Run, rows: &report::Table) -> Value {
-    let status = counts(rows, "status");
-    let reasons = failure_reasons(&run.spectrum);
+fn summarise_rows(
+    spectrum: &MultichannelSpectrum,
+    grid: &Lattice,
+    warnings: &mut Warnings,
+) -> Result<Value> {
+    let rows = SpectrumRows {
+        spectrum,
+        grid: Some(grid),
+    };
+    let status = counts(&rows, "status")?;
+    let row_count: usize = status.values().sum();
+    let reasons = failure_reasons(spectrum);
     let get = |k: &str| status.get(k).copied().unwrap_or(0);
     let (partial, failed) = (
         get(RowStatus::Partial.code()),
@@ -615,7 +651,7 @@ fn summarise_rows(run: &mut Run, rows: &report::Table) -> Value {
     let non_finite = get(report::spectrum::NON_FINITE);
     let complete = get(RowStatus::Complete.code());
     if failed > 0 && partial == 0 && complete == 0 {
-        run.warnings.push(
+        warnings.push(
             WarningKind::AllSaddlesFailed,
             format!(
                 "every orbit family that should contribute failed at every energy: the files \
@@ -625,7 +661,7 @@ fn summarise_rows(run: &mut Run, rows: &report::Table) -> Value {
             "read the validity warnings; holecast orbits lists each saddle with its reason",
         );
     } else if partial + failed > 0 {
-        run.warnings.push(
+        warnings.push(
             WarningKind::IncompletePoints,
             format!(
                 "{} rows are incomplete ({partial} partial, {failed} failed; failed family \
@@ -637,7 +673,7 @@ fn summarise_rows(run: &mut Run, rows: &report::Table) -> Value {
         );
     }
     if non_finite > 0 {
-        run.warnings.push(
+        warnings.push(
             WarningKind::NonFiniteValues,
             format!(
                 "{non_finite} rows have non-finite values (status non-finite; the columns are \
@@ -646,14 +682,18 @@ fn summarise_rows(run: &mut Run, rows: &report::Table) -> Value {
             "this is a defect of holecast: please report the command line",
         );
     }
-    json!({
-        "rows": rows.rows.len(),
+    Ok(json!({
+        "rows": row_count,
         "status": status,
         "failed_family_points": reasons,
-    })
+    }))
 }
 
-fn hole_files(run: &Run, rows: &report::Table, summary: &Value) -> Vec<(String, Vec<u8>)> {
+fn hole_files<'a>(
+    run: &Run,
+    rows: &'a HoleRows<'a>,
+    summary: &Value,
+) -> Vec<(String, Producer<'a>)> {
     let mut meta = run.meta.clone();
     meta.insert("warnings".into(), run.warnings.json());
     meta.insert("summary".into(), summary.clone());
@@ -667,13 +707,10 @@ fn hole_files(run: &Run, rows: &report::Table, summary: &Value) -> Vec<(String, 
             "status": "complete where the hole was decoded, else the reference family's status (below-threshold, failed-…): why the row's numbers are null",
         }),
     );
-    vec![
-        (
-            "holes.json".into(),
-            report::json::document(meta, "points", rows).into_bytes(),
-        ),
-        ("holes.csv".into(), report::csv::document(rows).into_bytes()),
-    ]
+    let json: Producer<'a> =
+        Box::new(move |w| report::json::write(&meta, "points", rows, w).map(|_| ()));
+    let csv: Producer<'a> = Box::new(move |w| report::csv::write(rows, w).map(|_| ()));
+    vec![("holes.json".into(), json), ("holes.csv".into(), csv)]
 }
 
 /// The figure context of a run (title block, axes, cutoffs).
@@ -686,17 +723,21 @@ fn figure_context(run: &Run, what: &str) -> report::svg::FigureContext {
             orbit: &run.orbit,
             cutoff: &run.summaries_cutoff,
             reference: run.spectrum.reference,
-            approximations: run.meta.get("approximations").unwrap_or(&Value::Null),
+            approximations: run
+                .meta
+                .get("provenance")
+                .and_then(|p| p.get("approximations"))
+                .unwrap_or(&Value::Null),
         },
         what,
     )
 }
 
 /// The hole figure, or a warning if it cannot be drawn.
-fn hole_svg(run: &mut Run) -> Option<(String, Vec<u8>)> {
+fn hole_svg<'a>(run: &mut Run) -> Option<(String, Producer<'a>)> {
     let ctx = figure_context(run, "hole density decoded by each harmonic");
     match report::svg::hole_figure(&run.spectrum, &ctx) {
-        Ok(svg) => Some(("holes.svg".into(), svg.into_bytes())),
+        Ok(svg) => Some(("holes.svg".into(), bytes(svg))),
         Err(e) => {
             run.warnings.push(
                 WarningKind::PlotNotDrawn,
@@ -706,6 +747,11 @@ fn hole_svg(run: &mut Run) -> Option<(String, Vec<u8>)> {
             None
         }
     }
+}
+
+/// A producer that writes text already built (the SVG figures, which are small).
+fn bytes<'a>(text: String) -> Producer<'a> {
+    Box::new(move |w| w.write_all(text.as_bytes()))
 }
 
 fn report_written(written: &Written, quiet: bool) {
@@ -777,11 +823,10 @@ pub fn spectrum(args: &SpectrumArgs, global: &Global) -> Result<()> {
         global,
         quadrature,
     )?;
-    let rows = report::spectrum::rows(&run.spectrum).map_err(|e| anyhow!(e))?;
-    let summary = summarise_rows(&mut run, &rows);
+    let summary = summarise_rows(&run.spectrum, &run.grid, &mut run.warnings)?;
     let ctx = figure_context(&run, "harmonic spectrum");
     let svg = match report::svg::spectrum_figure(&run.spectrum, &ctx) {
-        Ok(svg) => Some(("spectrum.svg".to_string(), svg.into_bytes())),
+        Ok(svg) => Some(("spectrum.svg".to_string(), bytes(svg))),
         Err(e) => {
             run.warnings.push(
                 WarningKind::PlotNotDrawn,
@@ -793,12 +838,16 @@ pub fn spectrum(args: &SpectrumArgs, global: &Global) -> Result<()> {
     };
     // The quadrature has no saddles, hence no hole density per orbit.
     let with_holes = run.target.target.channels.len() > 1 && args.method == MethodArg::Saddle;
-    let (hole_rows, hole_svg) = if with_holes {
-        let rows = report::spectrum::hole_rows(&run.spectrum).map_err(|e| anyhow!(e))?;
-        (Some(rows), hole_svg(&mut run))
-    } else {
-        (None, None)
+    let hole_svg = if with_holes { hole_svg(&mut run) } else { None };
+    let run = run;
+    let rows = SpectrumRows {
+        spectrum: &run.spectrum,
+        grid: Some(&run.grid),
     };
+    let hole_rows = with_holes.then_some(HoleRows {
+        spectrum: &run.spectrum,
+        grid: Some(&run.grid),
+    });
     let mut meta = run.meta.clone();
     meta.insert("warnings".into(), run.warnings.json());
     meta.insert("summary".into(), summary.clone());
@@ -822,22 +871,20 @@ pub fn spectrum(args: &SpectrumArgs, global: &Global) -> Result<()> {
             "*_status": "summed, excluded-<why>, below-threshold, no-classical-return, returns-after-pulse, beyond-half-cycle-cutoff, failed-<why>: why a family's columns are null",
         }),
     );
+    let rows = &rows;
+    let json: Producer<'_> =
+        Box::new(move |w| report::json::write(&meta, "points", rows, w).map(|_| ()));
+    let csv: Producer<'_> = Box::new(move |w| report::csv::write(rows, w).map(|_| ()));
     let mut files = vec![
-        (
-            "spectrum.json".to_string(),
-            report::json::document(meta, "points", &rows).into_bytes(),
-        ),
-        (
-            "spectrum.csv".to_string(),
-            report::csv::document(&rows).into_bytes(),
-        ),
+        ("spectrum.json".to_string(), json),
+        ("spectrum.csv".to_string(), csv),
     ];
     files.extend(svg);
     if let Some(rows) = &hole_rows {
         files.extend(hole_files(&run, rows, &summary));
         files.extend(hole_svg);
     }
-    let written = write_set(&args.out, "spectrum", &files, &SPECTRUM_NAMES)
+    let written = write_set(&args.out, "spectrum", files, &SPECTRUM_NAMES)
         .with_context(|| format!("writing the outputs into {}", args.out.display()))?;
     report_written(&written, global.quiet);
     run.warnings.print();
@@ -857,13 +904,16 @@ pub fn holes(args: &HolesArgs, global: &Global) -> Result<()> {
         global,
         None,
     )?;
-    let spectrum_rows = report::spectrum::rows(&run.spectrum).map_err(|e| anyhow!(e))?;
-    let summary = summarise_rows(&mut run, &spectrum_rows);
-    let rows = report::spectrum::hole_rows(&run.spectrum).map_err(|e| anyhow!(e))?;
+    let summary = summarise_rows(&run.spectrum, &run.grid, &mut run.warnings)?;
     let svg = hole_svg(&mut run);
+    let run = run;
+    let rows = HoleRows {
+        spectrum: &run.spectrum,
+        grid: Some(&run.grid),
+    };
     let mut files = hole_files(&run, &rows, &summary);
     files.extend(svg);
-    let written = write_set(&args.out, "holes", &files, &HOLES_NAMES)
+    let written = write_set(&args.out, "holes", files, &HOLES_NAMES)
         .with_context(|| format!("writing the outputs into {}", args.out.display()))?;
     report_written(&written, global.quiet);
     run.warnings.print();

@@ -10,5 +10,6 @@ pub mod interrupt;
 pub mod limits;
 pub mod output;
 pub mod progress;
+pub mod provenance;
 pub mod settings;
 pub mod warnings;
