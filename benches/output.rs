@@ -61,7 +61,7 @@ fn benches(c: &mut Criterion) {
     let energies: Vec<f64> = grid.values().into_iter().map(|q| q * w).collect();
     let hydrogen = target("hydrogen.json");
     let settings = MultichannelSettings {
-        group_delay_step: None,
+        group_delays: holecast::multichannel::GroupDelays::Skip,
         ..MultichannelSettings::default()
     };
     let stage = trajectory_stage(&field, &hydrogen, &energies, &settings).unwrap();

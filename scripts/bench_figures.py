@@ -44,9 +44,10 @@ def show(label, bench_id, per=None, unit=None):
 def main():
     args = [a for a in sys.argv[1:] if not a.startswith("--")]
     if "--no-run" not in sys.argv:
-        benches = args or ["orbits", "multichannel", "quadrature", "output"]
+        benches = args or ["orbits", "multichannel", "threads", "quadrature", "output"]
         for b in benches:
-            subprocess.run(["cargo", "bench", "--bench", b, "--", "--noplot"], cwd=ROOT, check=True)
+            subprocess.run(["cargo", "bench", "--features", "benchmarks", "--bench", b, "--", "--noplot"],
+                           cwd=ROOT, check=True)
     print("\nholecast benchmark figures (mean ± standard error of criterion's estimate)\n")
     show("trajectory stage: 3001 energies × 4 families", "orbits/continuation_12004_saddles", 12004, "saddle solutions")
     show("family discovery (classical seeds, once per field)", "orbits/family_discovery")
@@ -63,6 +64,15 @@ def main():
         show(f"  whole spectrum ({name.replace('_', ' ')})", f"multichannel/whole_spectrum_{name}")
     show("bent triatomic (2 channels, structure in the phase), 192 orientations, whole spectrum",
          "multichannel/whole_spectrum_bent_triatomic_192_orientations")
+    print("\nthread scaling of the whole spectrum, default settings (benches/threads.rs):")
+    for name in ["linear_triatomic", "bent_triatomic"]:
+        one = f"threads/whole_spectrum_{name}_1_threads"
+        two = f"threads/whole_spectrum_{name}_2_threads"
+        show(f"  {name.replace('_', ' ')}, 1 thread", one)
+        show(f"  {name.replace('_', ' ')}, 2 threads", two)
+        a, b = mean_seconds(one), mean_seconds(two)
+        if a is not None and b is not None:
+            print(f"  {'→ speed-up with 2 threads':56s} {a[0] / b[0]:10.2f}")
     print("\nsaddle path against quadrature, same work (benches/quadrature.rs)\n")
     pairs = [
         ("hydrogen, 800 nm, H11–H41 (31 lines)", "quadrature/saddle_hydrogen_800nm_H11_H41",

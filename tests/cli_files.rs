@@ -408,7 +408,7 @@ fn orbit_status_counts_are_those_of_the_rows() {
     let target = holecast::target::Target::atom(15.76).unwrap();
     let energies: Vec<f64> = (0..=60).map(|k| (11.0 + 0.5 * f64::from(k)) * w).collect();
     let settings = MultichannelSettings {
-        group_delay_step: None,
+        group_delays: holecast::multichannel::GroupDelays::Skip,
         ..MultichannelSettings::default()
     };
     let stage = trajectory_stage(&field, &target, &energies, &settings).unwrap();

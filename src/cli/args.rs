@@ -166,6 +166,20 @@ pub enum HoleExpansionArg {
     Leading,
 }
 
+/// How `spectrum` computes the group delays dφ/dΩ.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum GroupDelaysArg {
+    /// Saddle method: from each saddle's own phase slope ∂Φ/∂Ω = t_r (exact) plus the slope of
+    /// the prefactors across the energy grid, no extra saddles (saddle default); by difference
+    /// where the grid does not resolve the prefactors, and on grids coarser than 0.25 orders.
+    Tangent,
+    /// Central difference over Ω ± 0.001ω, every saddle (or the quadrature's transform) computed
+    /// again at both ends: three times the work (quadrature default).
+    Difference,
+    /// No group delays (their columns are null).
+    Skip,
+}
+
 /// Where a side's Gaussian structure factors go.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
 pub enum StructureArg {
@@ -252,6 +266,10 @@ pub struct SpectrumArgs {
     /// Saddle method: saddle summation [default: uniform].
     #[arg(long, value_enum)]
     pub sum: Option<SumArg>,
+    /// How the group delays are computed, or skipped [default: tangent with the saddle method,
+    /// difference with the quadrature].
+    #[arg(long, value_enum)]
+    pub group_delays: Option<GroupDelaysArg>,
     /// Method: saddle points or numerical quadrature. Options marked "saddle method" or
     /// "quadrature" are refused with the other method.
     #[arg(long, value_enum, default_value_t = MethodArg::Saddle)]

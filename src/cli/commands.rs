@@ -10,8 +10,8 @@ use holecast::dipole::SaddleSum;
 use holecast::field::Field;
 use holecast::laser::LaserSpec;
 use holecast::multichannel::{
-    HoleContour, HoleExpansion, MultichannelSettings, MultichannelSpectrum, StructurePlacement,
-    assemble, trajectory_stage,
+    GroupDelays, HoleContour, HoleExpansion, MultichannelSettings, MultichannelSpectrum,
+    StructurePlacement, assemble, refine_group_delays, trajectory_stage,
 };
 use holecast::orbits::{ChannelPair, OrbitSettings};
 use holecast::report::lattice::Lattice;
@@ -24,8 +24,8 @@ use holecast::validity::{self, Warning, WarningKind};
 use holecast::workload::Workload;
 
 use super::args::{
-    GridArgs, HoleExpansionArg, HoleTimesArg, HolesArgs, LaserArgs, MethodArg, ModelArgs,
-    MomentumArg, OrbitsArgs, SpectrumArgs, StructureArg, SumArg, TargetArgs,
+    GridArgs, GroupDelaysArg, HoleExpansionArg, HoleTimesArg, HolesArgs, LaserArgs, MethodArg,
+    ModelArgs, MomentumArg, OrbitsArgs, SpectrumArgs, StructureArg, SumArg, TargetArgs,
 };
 use super::describe::{ChannelSummary, metadata, reference};
 use super::figures::{RunDescription, context};
@@ -222,7 +222,7 @@ pub fn orbits(args: &OrbitsArgs, global: &Global) -> Result<()> {
     warnings.extend(validity::grid_warnings(field, &channels, energies));
     let settings = MultichannelSettings {
         orbits: loaded.orbit,
-        group_delay_step: None,
+        group_delays: GroupDelays::Skip,
         ..MultichannelSettings::default()
     };
     let t = &loaded.target.target;
@@ -419,7 +419,8 @@ fn quadrature_settings(
     excursion: Option<f64>,
     fall: Option<f64>,
     momentum: Option<MomentumArg>,
-) -> Option<holecast::quadrature::QuadratureSettings> {
+    group_delays: Option<GroupDelaysArg>,
+) -> Result<Option<holecast::quadrature::QuadratureSettings>> {
     let mut q = holecast::quadrature::QuadratureSettings {
         momentum: match momentum.unwrap_or(MomentumArg::Exact) {
             MomentumArg::Exact => holecast::quadrature::MomentumIntegral::Exact,
@@ -433,7 +434,25 @@ fn quadrature_settings(
     if let Some(f) = fall {
         q.window.fall_cycles = f;
     }
-    (method == MethodArg::Quadrature).then_some(q)
+    match group_delays {
+        None | Some(GroupDelaysArg::Difference) => {}
+        Some(GroupDelaysArg::Skip) => q.group_delay_step = None,
+        Some(GroupDelaysArg::Tangent) if method == MethodArg::Quadrature => bail!(
+            "--group-delays tangent needs saddle points; the quadrature has none: use \
+             --group-delays difference (its default) or skip"
+        ),
+        Some(GroupDelaysArg::Tangent) => {}
+    }
+    Ok((method == MethodArg::Quadrature).then_some(q))
+}
+
+/// The saddle method's group delays chosen on the command line.
+fn group_delays(arg: Option<GroupDelaysArg>) -> GroupDelays {
+    match arg {
+        None | Some(GroupDelaysArg::Tangent) => GroupDelays::Tangent,
+        Some(GroupDelaysArg::Difference) => GroupDelays::Difference { step: 1e-3 },
+        Some(GroupDelaysArg::Skip) => GroupDelays::Skip,
+    }
 }
 
 /// The structure placement chosen on the command line.
@@ -456,6 +475,7 @@ fn run(
     sum: Option<SumArg>,
     global: &Global,
     quadrature: Option<holecast::quadrature::QuadratureSettings>,
+    delays: GroupDelays,
 ) -> Result<Run> {
     let loaded = load(target, laser, grid.returns, global)?;
     let mut warnings = Warnings::default();
@@ -497,6 +517,7 @@ fn run(
             None | Some(HoleExpansionArg::NextOrder) => HoleExpansion::NextOrder,
             Some(HoleExpansionArg::Leading) => HoleExpansion::Leading,
         },
+        group_delays: delays,
         ..defaults
     };
     if let (Some(q), holecast::field::TimeStructure::Pulse { start, end }) =
@@ -536,7 +557,17 @@ fn run(
             let stage = trajectory_stage(field, t, &energies, &settings);
             spinner.finish_and_clear();
             let stage = stage?;
-            assemble(field, t, &stage, true, &report)?
+            let mut s = assemble(field, t, &stage, true, &report)?;
+            if !s.unresolved_group_delays.is_empty() {
+                let spinner = progress.spinner(format!(
+                    "group delays by difference at {} energies the grid does not resolve",
+                    s.unresolved_group_delays.len()
+                ));
+                let refined = refine_group_delays(field, t, &settings, true, &mut s);
+                spinner.finish_and_clear();
+                refined?;
+            }
+            s
         }
         Some(q) => {
             bar.set_message("quadrature");
@@ -559,6 +590,12 @@ fn run(
                 HoleContour::Real => "hole propagator U_I(Re t_r, Re t_i): hole frozen under the barrier (shortcut)",
             },
             "hole_expansion": settings.hole_expansion,
+            "group_delays": settings.group_delays,
+            "group_delays_note": match settings.group_delays {
+                GroupDelays::Tangent => "dφ/dΩ = Im d ln D/dΩ with each saddle's phase slope ∂Φ/∂Ω = t_r exact and the slope of the remaining prefactors (spreading, Airy, structure, hole) by a three-point difference across the energy grid; where the grid does not resolve the prefactors (|Δ ln| > 0.2 between neighbours), and on grids coarser than 0.25 harmonic orders throughout, by central difference over Ω ± 0.001ω with every saddle solved again",
+                GroupDelays::Difference { .. } => "dφ/dΩ by central difference over Ω ± 0.001ω, every saddle solved again at both ends",
+                GroupDelays::Skip => "not computed",
+            },
             "hole_expansion_note": match (settings.hole_contour, settings.hole_expansion) {
                 (HoleContour::Complex, HoleExpansion::NextOrder) => "U_I with its next-order saddle-point terms (curvature across the saddle, slope against the skew of the phase, the spreading factor and the structure prefactor); near a caustic (|zeta| < 1) the next-order/leading ratio of each family is bridged in photon energy from outside",
                 _ => "U_I at the saddle only (leading order)",
@@ -812,7 +849,8 @@ pub fn spectrum(args: &SpectrumArgs, global: &Global) -> Result<()> {
         args.excursion_cycles,
         args.window_fall_cycles,
         args.momentum_integral,
-    );
+        args.group_delays,
+    )?;
     let mut run = run(
         "spectrum",
         &args.target,
@@ -822,6 +860,7 @@ pub fn spectrum(args: &SpectrumArgs, global: &Global) -> Result<()> {
         args.sum,
         global,
         quadrature,
+        group_delays(args.group_delays),
     )?;
     let summary = summarise_rows(&run.spectrum, &run.grid, &mut run.warnings)?;
     let ctx = figure_context(&run, "harmonic spectrum");
@@ -857,7 +896,7 @@ pub fn spectrum(args: &SpectrumArgs, global: &Global) -> Result<()> {
             "intensity": "|D|^2 = sum over x,y,z of |D_k|^2, D(Ω) = ∫ <r>(t) e^{iΩt} dt over one period (periodic field) or the pulse, coherent over orientations, a.u.",
             "power": "Ω^4 |D|^2, proportional to the emitted power (dipole form), arbitrary units",
             "phase_rad": "arg of the dipole component along the driving polarization axis; null where the emission is negligible",
-            "group_delay_fs": "dφ/dΩ by central difference over Ω ± 0.001ω; for a periodic field only per family (*_group_delay_fs of a family is one half cycle's emission time; a sum over both half cycles has none: its dφ/dΩ is a half cycle's plus T/4), for pulses also for pairs and the total",
+            "group_delay_fs": "dφ/dΩ (how: approximations.group_delays); for a periodic field only per family (*_group_delay_fs of a family is one half cycle's emission time; a sum over both half cycles has none: its dφ/dΩ is a half cycle's plus T/4), for pulses also for pairs and the total",
             "complete": "true when the row's status is complete",
             "status": "complete (every family that should contribute converged), partial (some failed), failed (all that should contribute failed), below-threshold (below every recombining channel's Ip: no harmonic in this model), no-orbits, non-finite (see non_finite_columns)",
             "non_finite_columns": "columns whose computed value was not finite (written as null)",
@@ -903,6 +942,10 @@ pub fn holes(args: &HolesArgs, global: &Global) -> Result<()> {
         None,
         global,
         None,
+        // The same method as `spectrum`'s default, so that both write the same hole table (on
+        // a grid coarser than 0.25 orders the difference's triples Ω ± δ change the energies
+        // between which the next-order hole terms are bridged near a caustic).
+        GroupDelays::Tangent,
     )?;
     let summary = summarise_rows(&run.spectrum, &run.grid, &mut run.warnings)?;
     let svg = hole_svg(&mut run);

@@ -268,8 +268,7 @@ impl Lattice {
         }
         let value = |n: i64| n as f64 / q as f64;
         let label = |n: i64| {
-            ratio_label(n, q)
-                .ok_or_else(|| format!("grid order {n}/{q} cannot be labelled"))
+            ratio_label(n, q).ok_or_else(|| format!("grid order {n}/{q} cannot be labelled"))
         };
         let last = first
             .checked_add(
@@ -394,7 +393,9 @@ mod tests {
     fn rational_lattices_label_exactly_where_a_decimal_can() {
         // Pulse grid: n/10.
         let pulse = Lattice::rational(GridUnit::Order, 153, 1, 5, 10, "r").unwrap();
-        let labels: Vec<String> = (0..5).map(|k| pulse.label(k).unwrap().to_string()).collect();
+        let labels: Vec<String> = (0..5)
+            .map(|k| pulse.label(k).unwrap().to_string())
+            .collect();
         assert_eq!(labels, ["15.3", "15.4", "15.5", "15.6", "15.7"]);
         assert_eq!(pulse.values()[2], 155.0 / 10.0);
         // Odd orders.
@@ -402,7 +403,10 @@ mod tests {
         assert_eq!(odd.label(2).unwrap().to_string(), "19");
         // q = 3 has no finite decimal: the shortest round-trip of n/q.
         let third = Lattice::rational(GridUnit::Order, 31, 2, 2, 3, "r").unwrap();
-        assert_eq!(third.label(0).unwrap().to_string(), (31.0f64 / 3.0).to_string());
+        assert_eq!(
+            third.label(0).unwrap().to_string(),
+            (31.0f64 / 3.0).to_string()
+        );
         assert_eq!(third.label(1).unwrap().to_f64(), 33.0 / 3.0);
     }
 
