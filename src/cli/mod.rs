@@ -9,5 +9,6 @@ pub mod interrupt;
 pub mod limits;
 pub mod output;
 pub mod progress;
+pub mod scan;
 pub mod settings;
 pub mod warnings;
