@@ -29,7 +29,7 @@ use super::progress::Progress;
 #[derive(Debug, Args)]
 pub struct ScanArgs {
     /// Scan file (JSON; docs/scan-file.md, annotated example scans/intensity-demo.json).
-    #[arg(long, value_name = "FILE", conflicts_with_all = ["target", "axes", "zip", "orders", "energies", "returns", "group_delay"])]
+    #[arg(long, value_name = "FILE", conflicts_with_all = ["target", "laser", "intensity", "wavelength", "axes", "zip", "orders", "energies", "returns", "group_delay"])]
     pub plan: Option<PathBuf>,
     /// Without a scan file: the target file.
     #[arg(long, value_name = "FILE", required_unless_present = "plan")]

@@ -146,7 +146,7 @@ pub fn map(result: &ScanResult) -> Result<String, String> {
     let held: Vec<String> = d.axes[1..]
         .iter()
         .filter(|_| d.combine == Combine::Product)
-        .map(|a| format!("{} = {} {}", a.column_name(), a.values[0], a.unit))
+        .map(|a| format!("{} = {} {}", a.column_name(), tick(&a.values[0]), a.unit))
         .collect();
     let title = format!(
         "{} — log10 yield vs {}{}",
