@@ -30,12 +30,15 @@ pub use error::ScanError;
 pub use point::{PointLimits, PointOutcome, evaluate_point};
 pub use record::{PointRecord, ScanResult, Shard};
 
+/// Output files as `(name, bytes)`.
+pub type Files = Vec<(String, Vec<u8>)>;
+
 /// The three output files of a complete scan, `(name, bytes)`: `scan.npz`, `scan.csv` and,
 /// unless the map cannot be drawn (the reason is returned), `scan.svg`.
 ///
 /// # Errors
 /// The archive cannot be encoded.
-pub fn outputs(result: &ScanResult) -> Result<(Vec<(String, Vec<u8>)>, Option<String>), ScanError> {
+pub fn outputs(result: &ScanResult) -> Result<(Files, Option<String>), ScanError> {
     let mut files = vec![
         (
             "scan.npz".to_string(),
