@@ -20,6 +20,7 @@ pub mod orientation;
 pub mod quadrature;
 pub mod recombination;
 pub mod report;
+pub mod scan;
 pub mod special;
 pub mod spectrum;
 pub mod status;

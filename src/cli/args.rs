@@ -53,6 +53,15 @@ pub enum Command {
     /// Compute the hole density matrix decoded by each harmonic and write holes.json,
     /// holes.csv and holes.svg (populations and coherences vs. return delay).
     Holes(HolesArgs),
+    /// Compute the spectrum over a grid of parameters (a scan file or --axis flags) and write
+    /// scan.npz, scan.csv and scan.svg; --shard K/N computes one part (see scan-merge).
+    Scan(super::scan::ScanArgs),
+    /// Merge the shard files of a scan into scan.npz, scan.csv and scan.svg (the same bytes a
+    /// single run writes).
+    ScanMerge(super::scan::MergeArgs),
+    /// Write Slurm batch scripts for a sharded scan (array job + merge job) and print the sbatch
+    /// lines that submit them.
+    ScanSlurm(super::scan::SlurmArgs),
 }
 
 /// Which target.

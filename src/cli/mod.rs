@@ -11,5 +11,6 @@ pub mod limits;
 pub mod output;
 pub mod progress;
 pub mod provenance;
+pub mod scan;
 pub mod settings;
 pub mod warnings;
