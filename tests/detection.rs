@@ -156,6 +156,7 @@ fn power_law_toy_average_matches_closed_form_and_converges() {
                     axis: Vector3::z(),
                     total: vec![d],
                     families: BTreeMap::from([(SHORT, vec![d])]),
+                    pieces: BTreeMap::new(),
                     complete: vec![true],
                 }
             })
@@ -184,15 +185,18 @@ fn power_law_toy_average_matches_closed_form_and_converges() {
         eprintln!("unbounded, |D|² ∝ x^{n}: relative errors at 4, 8, 16, 32 samples {errors:?}");
         // Gauss–Legendre in sqrt(−ln x) removes the square-root edge: spectral convergence.
         assert!(errors[1] < errors[0] / 10.0, "n {n}: errors {errors:?}");
-        assert!(errors[2] < 1e-6 && errors[3] < 1e-10, "n {n}: errors {errors:?}");
+        assert!(
+            errors[2] < 1e-6 && errors[3] < 1e-10,
+            "n {n}: errors {errors:?}"
+        );
         // Thin slab at z = 0.7: spectral convergence.
         let thin = Medium::ThinSlab {
             position: 0.7,
             thickness: 0.01,
         };
         let xz = beam.on_axis(0.7);
-        let exact = 0.01 * pi * beam.width_squared(0.7) / (2.0 * n)
-            * (xz.powf(n) - (f * xz).powf(n));
+        let exact =
+            0.01 * pi * beam.width_squared(0.7) / (2.0 * n) * (xz.powf(n) - (f * xz).powf(n));
         let errors: Vec<f64> = [4usize, 8, 16]
             .iter()
             .map(|&samples| {
@@ -205,7 +209,10 @@ fn power_law_toy_average_matches_closed_form_and_converges() {
             })
             .collect();
         eprintln!("thin slab, |D|² ∝ x^{n}: relative errors at 4, 8, 16 samples {errors:?}");
-        assert!(errors[2] < 1e-7 && errors[1] < errors[0], "thin slab n {n}: {errors:?}");
+        assert!(
+            errors[2] < 1e-7 && errors[1] < errors[0],
+            "thin slab n {n}: {errors:?}"
+        );
     }
 }
 
@@ -285,6 +292,7 @@ fn constant_dipoles(n: usize, d: Complex64) -> Vec<FamilyDipoles> {
             axis: Vector3::z(),
             total: vec![v],
             families: BTreeMap::from([(SHORT, vec![v])]),
+            pieces: BTreeMap::new(),
             complete: vec![true],
         })
         .collect()
@@ -328,7 +336,11 @@ fn build_up_of_a_constant_dipole_gouy_and_sinc() {
         sum += Complex64::from_polar(w * h, -21.0 * beam.gouy(z));
     }
     let expected = (sum / (b - a)).norm_sqr() * 0.25;
-    assert!(rel(out.total[0], expected) < 1e-8, "{} vs {expected}", out.total[0]);
+    assert!(
+        rel(out.total[0], expected) < 1e-8,
+        "{} vs {expected}",
+        out.total[0]
+    );
     // sinc²: z_R huge, δ_ir set so that ΔkL/2 = 1.3.
     let beam = GaussianBeam::new(1e5, 1e20).unwrap();
     let length = 2e6;
@@ -361,7 +373,12 @@ fn build_up_of_a_constant_dipole_gouy_and_sinc() {
     );
 }
 
-fn jet(position_mm: f64, length_mm: f64, samples: usize, refractivity: f64) -> holecast::detection::Setup {
+fn jet(
+    position_mm: f64,
+    length_mm: f64,
+    samples: usize,
+    refractivity: f64,
+) -> holecast::detection::Setup {
     setup(&format!(
         r#"{{"beam": {{"waist_um": 50}},
             "medium": {{"geometry": {{"kind": "slab", "position_mm": {position_mm}, "length_mm": {length_mm}}},
@@ -383,7 +400,10 @@ fn jet(position_mm: f64, length_mm: f64, samples: usize, refractivity: f64) -> h
 fn jet_after_the_focus_selects_short_trajectories_before_it_long() {
     let target = hydrogen();
     let field = LaserSpec::monochromatic(2.0e14, 800.0).to_field().unwrap();
-    let energies: Vec<f64> = (15..=27).step_by(2).map(|q| q as f64 * field.omega()).collect();
+    let energies: Vec<f64> = (15..=27)
+        .step_by(2)
+        .map(|q| q as f64 * field.omega())
+        .collect();
     let ratio = |pos: f64| -> Vec<f64> {
         let out = detect(
             &field,
@@ -402,8 +422,16 @@ fn jet_after_the_focus_selects_short_trajectories_before_it_long() {
     let before = ratio(-3.0);
     eprintln!("log10(short/long): after {after:.2?}, before {before:.2?}");
     for (k, (a, b)) in after.iter().zip(&before).enumerate() {
-        assert!(*a > 0.2, "H{}: after the focus short/long = 10^{a:.2}", 15 + 2 * k);
-        assert!(*b < -0.1, "H{}: before the focus short/long = 10^{b:.2}", 15 + 2 * k);
+        assert!(
+            *a > 0.2,
+            "H{}: after the focus short/long = 10^{a:.2}",
+            15 + 2 * k
+        );
+        assert!(
+            *b < -0.1,
+            "H{}: before the focus short/long = 10^{b:.2}",
+            15 + 2 * k
+        );
     }
 }
 
@@ -414,7 +442,10 @@ fn jet_after_the_focus_selects_short_trajectories_before_it_long() {
 fn build_up_converges_with_samples_and_axis_points() {
     let target = hydrogen();
     let field = LaserSpec::monochromatic(2.0e14, 800.0).to_field().unwrap();
-    let energies: Vec<f64> = (15..=27).step_by(2).map(|q| q as f64 * field.omega()).collect();
+    let energies: Vec<f64> = (15..=27)
+        .step_by(2)
+        .map(|q| q as f64 * field.omega())
+        .collect();
     let run = |samples: usize, points: usize| -> Vec<f64> {
         let s = setup(&format!(
             r#"{{"beam": {{"waist_um": 50}},
@@ -434,7 +465,10 @@ fn build_up_converges_with_samples_and_axis_points() {
             .map(|(a, b)| rel(*a, *b))
             .fold(0.0, f64::max)
     };
-    let errors: Vec<f64> = [4usize, 8, 16].iter().map(|&n| worst(&run(n, 192))).collect();
+    let errors: Vec<f64> = [4usize, 8, 16]
+        .iter()
+        .map(|&n| worst(&run(n, 192)))
+        .collect();
     eprintln!("intensity samples 4, 8, 16 vs 48: largest relative change {errors:?}");
     assert!(errors[2] < errors[0] && errors[2] < 1e-2, "{errors:?}");
     let axis = worst(&run(48, 32));
@@ -468,11 +502,18 @@ fn wavelength_energy_conversion_conserves_the_integrated_yield() {
         }
     }
     assert!((total - 1.0).abs() < 1e-10, "∫ S_λ dλ = {total}");
-    assert!((hc_ev_nm() - 1239.841_984).abs() < 1e-5, "hc = {}", hc_ev_nm());
+    assert!(
+        // hc/e = 6.62607015e−34 · 299792458 / 1.602176634e−19 m·V (exact SI 2019 values).
+        (hc_ev_nm() - 1_239.841_984).abs() < 1e-5,
+        "hc = {}",
+        hc_ev_nm()
+    );
 }
 
 fn flat_table(name: &str, lo: f64, hi: f64, f: impl Fn(f64) -> f64) -> Table {
-    let x: Vec<f64> = (0..=200).map(|k| lo + (hi - lo) * k as f64 / 200.0).collect();
+    let x: Vec<f64> = (0..=200)
+        .map(|k| lo + (hi - lo) * k as f64 / 200.0)
+        .collect();
     let y = x.iter().map(|&e| f(e)).collect();
     Table::new(name, x, y).unwrap()
 }
@@ -548,7 +589,12 @@ fn resolution_convolution_against_closed_forms_and_quadrature() {
         ..Detector::default()
     };
     let out = det
-        .apply(&[e21 - omega_ev, e21, e21 + omega_ev], &[0.0, 2.5, 0.0], SourceKind::Lines, omega_ev)
+        .apply(
+            &[e21 - omega_ev, e21, e21 + omega_ev],
+            &[0.0, 2.5, 0.0],
+            SourceKind::Lines,
+            omega_ev,
+        )
         .unwrap();
     let sl = fwhm_to_sigma(0.05);
     let l21 = photon_wavelength_nm(e21);
@@ -577,35 +623,55 @@ fn setup_file_errors_name_the_key() {
         .unwrap_err()
         .to_string();
     assert!(e.contains("waste_um"), "{e}");
-    let e = SetupSpec::from_json(&base.replace(r#""length_mm": 0.5"#, r#""length_mm": 0.5, "lenght": 1"#))
-        .unwrap_err()
-        .to_string();
+    let e = SetupSpec::from_json(
+        &base.replace(r#""length_mm": 0.5"#, r#""length_mm": 0.5, "lenght": 1"#),
+    )
+    .unwrap_err()
+    .to_string();
     assert!(e.contains("lenght"), "{e}");
     let e = SetupSpec::from_json(&base.replace("0.5", "-0.5"))
         .unwrap()
         .validate()
         .unwrap_err()
         .to_string();
-    assert!(e.contains("medium.geometry.length_mm") && e.contains("-0.5"), "{e}");
-    let e = SetupSpec::from_json(&base.replace(r#""density_cm3": 1e17"#, r#""density_cm3": 1e17, "lowest_intensity_fraction": 0.1"#))
-        .unwrap()
-        .validate()
-        .unwrap_err()
-        .to_string();
-    assert!(e.contains("lowest_intensity_fraction") && e.contains("incoherent-volume"), "{e}");
-    let e = SetupSpec::from_json(&base.replace(r#""waist_um": 40"#, r#""waist_um": 40, "f_number": 20"#))
-        .unwrap()
-        .validate()
-        .unwrap_err()
-        .to_string();
+    assert!(
+        e.contains("medium.geometry.length_mm") && e.contains("-0.5"),
+        "{e}"
+    );
+    let e = SetupSpec::from_json(&base.replace(
+        r#""density_cm3": 1e17"#,
+        r#""density_cm3": 1e17, "lowest_intensity_fraction": 0.1"#,
+    ))
+    .unwrap()
+    .validate()
+    .unwrap_err()
+    .to_string();
+    assert!(
+        e.contains("lowest_intensity_fraction") && e.contains("incoherent-volume"),
+        "{e}"
+    );
+    let e = SetupSpec::from_json(
+        &base.replace(r#""waist_um": 40"#, r#""waist_um": 40, "f_number": 20"#),
+    )
+    .unwrap()
+    .validate()
+    .unwrap_err()
+    .to_string();
     assert!(e.contains("beam.f_number"), "{e}");
-    let path = format!("{}/setups/demo-jet-after-focus.json", env!("CARGO_MANIFEST_DIR"));
+    let path = format!(
+        "{}/setups/demo-jet-after-focus.json",
+        env!("CARGO_MANIFEST_DIR")
+    );
     let demo = SetupSpec::from_json(&std::fs::read_to_string(path).unwrap())
         .unwrap()
         .validate()
         .unwrap();
     assert_eq!(demo.combination, Combination::CoherentAxis);
-    assert!(demo.detector.as_ref().is_some_and(|d| !d.filters.is_empty()));
+    assert!(
+        demo.detector
+            .as_ref()
+            .is_some_and(|d| !d.filters.is_empty())
+    );
 }
 
 /// The field scaled to a sample keeps every ratio: Up and the peak field scale as x and sqrt(x)
@@ -614,11 +680,108 @@ fn setup_file_errors_name_the_key() {
 fn scaled_field_scales_up_and_peak_field() {
     let field: Field = LaserSpec::monochromatic(2.0e14, 1300.0).to_field().unwrap();
     let f = holecast::detection::scaled_field(&field, 0.37).unwrap();
-    assert!(rel(f.ponderomotive_energy(), 0.37 * field.ponderomotive_energy()) < 1e-15);
+    assert!(
+        rel(
+            f.ponderomotive_energy(),
+            0.37 * field.ponderomotive_energy()
+        ) < 1e-15
+    );
     assert!(rel(f.peak_field(), 0.37f64.sqrt() * field.peak_field()) < 1e-15);
     let t = num_complex::Complex64::new(13.0, 4.0);
     let (a, b) = (f.electric(t), field.electric(t));
     for k in 0..3 {
         assert!((a[k] - b[k] * 0.37f64.sqrt()).norm() <= 1e-14 * b.norm().max(1e-300));
     }
+}
+
+/// Free-electron dispersion and XUV absorption in the build-up against closed forms, with a
+/// constant dipole and no Gouy phase (z_R ≫ L): a uniform plasma (Drude index
+/// n = 1 − ω_p²/(2ω²), ω_p² = 4π n_e, textbook) gives sinc²(ΔkL/2) with
+/// Δk = (Ω/c)·2π n η (1/ω² − 1/Ω²); an absorbing medium gives
+/// [(1 − e^{−nσL/2})/(nσL/2)]² (Beer–Lambert on the amplitude; the absorption-limited yield of
+/// E. Constant et al., PRL 82, 1668 (1999), from memory).
+#[test]
+fn plasma_and_absorption_against_closed_forms() {
+    let omega = 0.057;
+    let big = 25.0 * omega;
+    let energies = [big];
+    let beam = GaussianBeam::new(1e5, 1e20).unwrap();
+    let length = 1.9e7; // about 1 mm
+    let medium = Medium::slab(0.0, length).unwrap();
+    let dipoles = constant_dipoles(1, Complex64::new(1.0, 0.0));
+    let (density, eta) = (1.5e-8, 0.4);
+    let prop = Propagation {
+        ionized_fraction: Some(vec![eta]),
+        ..Propagation::default()
+    };
+    let input = AxisBuildUpInput {
+        beam,
+        medium,
+        density,
+        omega,
+        energies: &energies,
+        intensities: &[1.0],
+        dipoles: &dipoles,
+        axis_points: 200,
+        propagation: &prop,
+    };
+    let out = axis_build_up(&input).unwrap();
+    let c = holecast::detection::beam::SPEED_OF_LIGHT_AU;
+    let dk = big / c
+        * 2.0
+        * std::f64::consts::PI
+        * density
+        * eta
+        * (1.0 / (omega * omega) - 1.0 / (big * big));
+    let x = dk * length / 2.0;
+    assert!(x > 0.5, "the case should dephase: ΔkL/2 = {x}");
+    let sinc = x.sin() / x;
+    assert!(
+        rel(out.total[0], sinc * sinc) < 1e-10,
+        "{} vs {}",
+        out.total[0],
+        sinc * sinc
+    );
+    let sigma = 2.0 / (density * length); // nσL = 2
+    let prop = Propagation {
+        cross_section: Some(vec![sigma]),
+        ..Propagation::default()
+    };
+    let out = axis_build_up(&AxisBuildUpInput {
+        propagation: &prop,
+        ..input.clone()
+    })
+    .unwrap();
+    let a: f64 = 1.0; // nσL/2
+    let exact = ((1.0 - (-a).exp()) / a).powi(2);
+    assert!(
+        rel(out.total[0], exact) < 1e-12,
+        "{} vs {exact}",
+        out.total[0]
+    );
+}
+
+/// The ionized fraction at the centre of a sin² pulse whose |E(t)| is symmetric about t = 0 is
+/// the fraction over half of the pulse: `1 − exp(−W/2)` with W the project's full-pulse ADK
+/// integral ([`holecast::validity::scan_field`], itself tested against the cycle-averaged ADK
+/// rate of Ammosov, Delone, Krainov 1986).
+#[test]
+fn ionized_fraction_is_half_the_pulse_integral() {
+    let text = r#"{"colours": [{"wavelength_nm": 800, "intensity_wcm2": 3e14}],
+                   "envelope": {"kind": "sin2", "fwhm_fs": 10}}"#;
+    let spec: LaserSpec = serde_json::from_str(text).unwrap();
+    let field = spec.to_field().unwrap();
+    let channels = holecast::validity::channels_of(&hydrogen());
+    let full = holecast::validity::scan_field(&field, &channels).ionization_integral;
+    let eta = holecast::detection::plasma::ionized_fraction_at_centre(&field, &channels).unwrap();
+    let expected = -(-0.5 * full).exp_m1();
+    assert!(
+        eta > 1e-6 && rel(eta, expected) < 1e-3,
+        "{eta} vs {expected}"
+    );
+    let cw = LaserSpec::monochromatic(3e14, 800.0).to_field().unwrap();
+    let e = holecast::detection::plasma::ionized_fraction_at_centre(&cw, &channels)
+        .unwrap_err()
+        .to_string();
+    assert!(e.contains("free_electrons") && e.contains("pulse"), "{e}");
 }

@@ -27,9 +27,10 @@
 //! coefficient). Reported is `|B|²`, normalised so that a perfectly phase-matched medium gives
 //! `|D|²` (the absolute on-axis yield is `(nL)²` times it).
 //!
-//! **Dipoles between intensity samples.** The dipole of each family is computed at a few on-axis
-//! intensities ([`axis_intensities`], uniform in I over the medium) and interpolated linearly in
-//! I in the logarithm of `|ê·D_f|`, in the phase `arg(ê·D_f)` unwrapped by linear prediction from
+//! **Dipoles between intensity samples.** The dipole of each contribution (one family of one
+//! channel pair on one half cycle, [`super::families::FamilyDipoles::pieces`]) is computed at a
+//! few on-axis intensities ([`axis_intensities`], uniform in I over the medium) and interpolated
+//! linearly in I in the logarithm of `|ê·D|`, in the phase `arg(ê·D_f)` unwrapped by linear prediction from
 //! the two previous samples, and in the shape `D_f e^{−iφ}/|ê·D_f|`. The largest departure of a
 //! phase from its prediction is reported (`phase_check`): above π/2 the samples are too sparse
 //! for the family's intensity-dependent phase and the result is flagged.
@@ -136,25 +137,20 @@ pub fn axis_points(medium: &Medium, n: usize) -> Result<(Vec<f64>, Vec<f64>)> {
 }
 
 /// A family's dipole at one energy as a function of the relative intensity.
+///
+/// Between two samples where `ê·D` is non-zero: linear in I in `ln|ê·D|`, in the unwrapped phase
+/// and in the shape `D e^{−iφ}/|ê·D|`. An interval with a zero end (a contribution that is
+/// absent or excluded at some intensities, e.g. above its cutoff) is interpolated linearly in
+/// the complex vector, and the phase chain restarts after it.
 #[derive(Clone, Debug)]
 pub struct DipoleInterpolant {
     x: Vec<f64>,
-    mode: Interpolation,
-    /// Largest departure of an unwrapped phase from its linear prediction (rad); 0 with fewer
-    /// than two samples.
+    values: Vec<CVec3>,
+    /// Per sample: (ln|ê·D|, unwrapped phase, shape), None where `ê·D` vanishes.
+    polar: Vec<Option<(f64, f64, CVec3)>>,
+    /// Largest departure of an unwrapped phase from its linear prediction (rad), or of the
+    /// first step of a chain from zero; 0 with fewer than two samples.
     pub phase_check: f64,
-}
-
-#[derive(Clone, Debug)]
-enum Interpolation {
-    /// Log-amplitude, unwrapped phase and shape.
-    Polar {
-        log_amp: Vec<f64>,
-        phase: Vec<f64>,
-        shape: Vec<CVec3>,
-    },
-    /// Plain linear interpolation of the vector (where `ê·D` vanishes at a sample).
-    Linear(Vec<CVec3>),
 }
 
 /// The branch of `phase` nearest to `target`.
@@ -166,88 +162,66 @@ fn nearest_branch(phase: f64, target: f64) -> f64 {
 impl DipoleInterpolant {
     /// Builds the interpolant from samples at ascending relative intensities `x`.
     pub fn new(axis: &nalgebra::Vector3<f64>, x: &[f64], values: &[CVec3]) -> Self {
-        let polar = values.iter().all(|d| {
-            let p = project(axis, d);
-            p.norm() > 0.0 && p.is_finite()
-        });
-        if !polar {
-            return DipoleInterpolant {
-                x: x.to_vec(),
-                mode: Interpolation::Linear(values.to_vec()),
-                phase_check: 0.0,
-            };
-        }
-        let mut phase: Vec<f64> = Vec::with_capacity(x.len());
+        let mut polar: Vec<Option<(f64, f64, CVec3)>> = Vec::with_capacity(x.len());
         let mut check = 0.0_f64;
         for (j, d) in values.iter().enumerate() {
-            let raw = project(axis, d).arg();
-            let p = match j {
-                0 => raw,
-                1 => nearest_branch(raw, phase[0]),
-                _ => {
-                    let slope = (phase[j - 1] - phase[j - 2]) / (x[j - 1] - x[j - 2]);
-                    let predicted = phase[j - 1] + slope * (x[j] - x[j - 1]);
-                    let p = nearest_branch(raw, predicted);
-                    check = check.max((p - predicted).abs());
-                    p
-                }
-            };
-            if j == 1 {
-                check = check.max((p - phase[0]).abs());
+            let p = project(axis, d);
+            if !(p.norm() > 0.0 && p.is_finite()) {
+                polar.push(None);
+                continue;
             }
-            phase.push(p);
+            let raw = p.arg();
+            let previous = |k: usize| -> Option<f64> {
+                j.checked_sub(k)
+                    .and_then(|i| polar.get(i).copied().flatten())
+                    .map(|t| t.1)
+            };
+            let phase = match (previous(1), previous(2)) {
+                (Some(p1), Some(p2)) => {
+                    let slope = (p1 - p2) / (x[j - 1] - x[j - 2]);
+                    let predicted = p1 + slope * (x[j] - x[j - 1]);
+                    let ph = nearest_branch(raw, predicted);
+                    check = check.max((ph - predicted).abs());
+                    ph
+                }
+                (Some(p1), None) => {
+                    let ph = nearest_branch(raw, p1);
+                    check = check.max((ph - p1).abs());
+                    ph
+                }
+                _ => raw,
+            };
+            let shape = d * Complex64::from_polar(1.0 / p.norm(), -phase);
+            polar.push(Some((p.norm().ln(), phase, shape)));
         }
-        let log_amp = values.iter().map(|d| project(axis, d).norm().ln()).collect();
-        let shape = values
-            .iter()
-            .zip(&phase)
-            .map(|(d, &p)| d * Complex64::from_polar(1.0 / project(axis, d).norm(), -p))
-            .collect();
         DipoleInterpolant {
             x: x.to_vec(),
-            mode: Interpolation::Polar {
-                log_amp,
-                phase,
-                shape,
-            },
+            values: values.to_vec(),
+            polar,
             phase_check: check,
         }
     }
 
     /// The dipole at relative intensity `x` (clamped to the sampled range), and its phase
-    /// `arg(ê·D)` continued along the samples (None in the linear mode).
+    /// `arg(ê·D)` continued along the samples (None on an interval with a zero end).
     pub fn at(&self, x: f64) -> (CVec3, Option<f64>) {
         let n = self.x.len();
-        let (j, t) = if n == 1 {
-            (0, 0.0)
-        } else {
-            let k = self.x.partition_point(|&v| v < x).clamp(1, n - 1);
-            let t = ((x - self.x[k - 1]) / (self.x[k] - self.x[k - 1])).clamp(0.0, 1.0);
-            (k - 1, t)
-        };
+        if n == 1 {
+            return (self.values[0], self.polar[0].map(|p| p.1));
+        }
+        let k = self.x.partition_point(|&v| v < x).clamp(1, n - 1);
+        let t = ((x - self.x[k - 1]) / (self.x[k] - self.x[k - 1])).clamp(0.0, 1.0);
         let lerp = |a: f64, b: f64| a + (b - a) * t;
-        match &self.mode {
-            Interpolation::Polar {
-                log_amp,
-                phase,
-                shape,
-            } => {
-                if n == 1 {
-                    return (shape[0] * Complex64::from_polar(log_amp[0].exp(), phase[0]), Some(phase[0]));
-                }
-                let (la, ph) = (
-                    lerp(log_amp[j], log_amp[j + 1]),
-                    lerp(phase[j], phase[j + 1]),
-                );
-                let s = shape[j] + (shape[j + 1] - shape[j]) * Complex64::new(t, 0.0);
-                (s * Complex64::from_polar(la.exp(), ph), Some(ph))
+        match (self.polar[k - 1], self.polar[k]) {
+            (Some((la, pa, sa)), Some((lb, pb, sb))) => {
+                let ph = lerp(pa, pb);
+                let s = sa + (sb - sa) * Complex64::new(t, 0.0);
+                (s * Complex64::from_polar(lerp(la, lb).exp(), ph), Some(ph))
             }
-            Interpolation::Linear(v) => {
-                if n == 1 {
-                    return (v[0], None);
-                }
-                (v[j] + (v[j + 1] - v[j]) * Complex64::new(t, 0.0), None)
-            }
+            _ => (
+                self.values[k - 1] + (self.values[k] - self.values[k - 1]) * Complex64::new(t, 0.0),
+                None,
+            ),
         }
     }
 }
@@ -282,8 +256,10 @@ pub struct AxisBuildUp {
     pub total: Vec<f64>,
     /// `|B_f|²` per family label.
     pub families: BTreeMap<FamilyLabel, Vec<f64>>,
-    /// Largest phase check per family over the energies (rad; see [`DipoleInterpolant`]).
-    pub phase_check: BTreeMap<FamilyLabel, f64>,
+    /// Largest phase check per family over the energies (rad; see [`DipoleInterpolant`]),
+    /// counted where a contribution reaches 1e−6 of the energy's largest |D|², with the
+    /// harmonic order where it occurs.
+    pub phase_check: BTreeMap<FamilyLabel, (f64, f64)>,
     /// Largest change of a family's total phase between neighbouring axis points (rad) over
     /// families and energies: above π/2 the axis points do not resolve the phase.
     pub axis_phase_step: f64,
@@ -345,7 +321,11 @@ pub fn axis_build_up(input: &AxisBuildUpInput<'_>) -> Result<AxisBuildUp> {
         Medium::ThinSlab {
             position,
             thickness,
-        } => (position - 0.5 * thickness, position + 0.5 * thickness, thickness),
+        } => (
+            position - 0.5 * thickness,
+            position + 0.5 * thickness,
+            thickness,
+        ),
         Medium::Unbounded => unreachable!("rejected by axis_points"),
     };
     let x_at: Vec<f64> = z.iter().map(|&zz| beam.on_axis(zz)).collect();
@@ -356,7 +336,9 @@ pub fn axis_build_up(input: &AxisBuildUpInput<'_>) -> Result<AxisBuildUp> {
                 if f.len() == 1 {
                     return f[0];
                 }
-                let k = intensities.partition_point(|&v| v < x).clamp(1, f.len() - 1);
+                let k = intensities
+                    .partition_point(|&v| v < x)
+                    .clamp(1, f.len() - 1);
                 let t = ((x - intensities[k - 1]) / (intensities[k] - intensities[k - 1]))
                     .clamp(0.0, 1.0);
                 f[k - 1] + (f[k] - f[k - 1]) * t
@@ -396,9 +378,24 @@ pub fn axis_build_up(input: &AxisBuildUpInput<'_>) -> Result<AxisBuildUp> {
     let mut total = vec![0.0; ne];
     let mut families: BTreeMap<FamilyLabel, Vec<f64>> =
         labels.iter().map(|l| (*l, vec![0.0; ne])).collect();
-    let mut phase_check: BTreeMap<FamilyLabel, f64> = labels.iter().map(|l| (*l, 0.0)).collect();
+    let mut phase_check: BTreeMap<FamilyLabel, (f64, f64)> =
+        labels.iter().map(|l| (*l, (0.0, 0.0))).collect();
     let mut axis_step = 0.0_f64;
     let zero = vec![CVec3::zeros(); ne];
+    // Largest |D|² of any sample and piece (or label) per energy, for the phase check.
+    let scale: Vec<f64> = (0..ne)
+        .map(|k| {
+            dipoles
+                .iter()
+                .flat_map(|d| {
+                    d.pieces
+                        .values()
+                        .chain(d.families.values())
+                        .map(move |v| strength(&v[k]))
+                })
+                .fold(0.0, f64::max)
+        })
+        .collect();
     for k in 0..ne {
         let big = energies[k];
         let q = big / omega;
@@ -423,26 +420,51 @@ pub fn axis_build_up(input: &AxisBuildUpInput<'_>) -> Result<AxisBuildUp> {
             .collect();
         let mut sum_total = CVec3::zeros();
         for label in &labels {
-            let values: Vec<CVec3> = dipoles
-                .iter()
-                .map(|d| d.families.get(label).unwrap_or(&zero)[k])
-                .collect();
-            let interp = DipoleInterpolant::new(&axis, intensities, &values);
-            if let Some(p) = phase_check.get_mut(label) {
-                *p = p.max(interp.phase_check);
-            }
+            // The label's pieces (or the label's sum where no pieces are given).
+            let keys: Vec<Option<super::families::PieceKey>> = {
+                let mut keys: Vec<super::families::PieceKey> = dipoles
+                    .iter()
+                    .flat_map(|d| d.pieces.keys().filter(|p| p.0 == *label).copied())
+                    .collect();
+                keys.sort();
+                keys.dedup();
+                if keys.is_empty() {
+                    vec![None]
+                } else {
+                    keys.into_iter().map(Some).collect()
+                }
+            };
             let mut b = CVec3::zeros();
-            let mut previous: Option<f64> = None;
-            for ((&xx, &wt), (f, propagation_phase)) in x_at.iter().zip(&w).zip(&factor) {
-                let (d, ph) = interp.at(xx);
-                b += d * (f * (wt / length));
-                if let Some(ph) = ph {
-                    // Both parts are continuous (unwrapped) along the axis.
-                    let total_phase = ph + propagation_phase;
-                    if let Some(prev) = previous {
-                        axis_step = axis_step.max((total_phase - prev).abs());
+            for key in keys {
+                let values: Vec<CVec3> = dipoles
+                    .iter()
+                    .map(|d| match key {
+                        Some(p) => d.pieces.get(&p).unwrap_or(&zero)[k],
+                        None => d.families.get(label).unwrap_or(&zero)[k],
+                    })
+                    .collect();
+                let interp = DipoleInterpolant::new(&axis, intensities, &values);
+                // The check counts where the contribution matters: at least 1e-3 of the
+                // largest dipole of this energy in amplitude (1e-6 in intensity).
+                let largest = values.iter().map(strength).fold(0.0, f64::max);
+                if largest >= 1e-6 * scale[k]
+                    && let Some(p) = phase_check.get_mut(label)
+                    && interp.phase_check > p.0
+                {
+                    *p = (interp.phase_check, q);
+                }
+                let mut previous: Option<f64> = None;
+                for ((&xx, &wt), (f, propagation_phase)) in x_at.iter().zip(&w).zip(&factor) {
+                    let (d, ph) = interp.at(xx);
+                    b += d * (f * (wt / length));
+                    if let Some(ph) = ph {
+                        // Both parts are continuous (unwrapped) along the axis.
+                        let total_phase = ph + propagation_phase;
+                        if let Some(prev) = previous {
+                            axis_step = axis_step.max((total_phase - prev).abs());
+                        }
+                        previous = Some(total_phase);
                     }
-                    previous = Some(total_phase);
                 }
             }
             if let Some(v) = families.get_mut(label) {

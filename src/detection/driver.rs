@@ -179,12 +179,8 @@ pub fn detect(
     } else {
         None
     };
-    let power = |v: &[f64]| -> Vec<f64> {
-        v.iter()
-            .zip(energies)
-            .map(|(x, e)| x * e.powi(4))
-            .collect()
-    };
+    let power =
+        |v: &[f64]| -> Vec<f64> { v.iter().zip(energies).map(|(x, e)| x * e.powi(4)).collect() };
     let (average, build_up, source_total, source_families) = match setup.combination {
         Combination::IncoherentVolume => {
             let Some(w) = &weights else {
@@ -193,10 +189,12 @@ pub fn detect(
             let s: Vec<super::intensity_rule::IntensitySample> = intensities
                 .iter()
                 .zip(w)
-                .map(|(&relative, &weight)| super::intensity_rule::IntensitySample {
-                    relative,
-                    weight,
-                })
+                .map(
+                    |(&relative, &weight)| super::intensity_rule::IntensitySample {
+                        relative,
+                        weight,
+                    },
+                )
                 .collect();
             let avg = volume_average(&s, &dipoles)?;
             let (Some(mean), Some(fam)) = (avg.mean(), avg.family_mean()) else {
@@ -252,16 +250,21 @@ pub fn detect(
                 axis_points: setup.axis_points,
                 propagation: &propagation,
             })?;
-            for (label, check) in &b.phase_check {
+            for (label, (check, order)) in &b.phase_check {
                 if *check > PHASE_CHECK_LIMIT {
                     notes.push(DetectionNote {
-                        code: "dipole-phase-under-resolved",
+                        code: "dipole-phase-jump",
                         message: format!(
-                            "the {label} family's dipole phase moves by up to {check:.2} rad \
-                             more than predicted between intensity samples: the samples do not \
-                             resolve its intensity dependence"
+                            "at H{order:.2} the {label} family's dipole phase moves by up to \
+                             {check:.2} rad more than predicted from the neighbouring intensity \
+                             samples: either the samples do not resolve its intensity dependence \
+                             or the single-molecule dipole jumps with the intensity (near a \
+                             cutoff, where families switch on and off); the build-up there is \
+                             uncertain"
                         ),
-                        advice: "raise medium.intensity_samples".into(),
+                        advice: "raise medium.intensity_samples; if the jump stays, read that \
+                                 harmonic's build-up as uncertain"
+                            .into(),
                     });
                 }
             }

@@ -14,7 +14,10 @@ use crate::field::CVec3;
 use crate::multichannel::MultichannelSpectrum;
 use crate::orbits::FamilyLabel;
 
-/// The dipole of one sample per energy, total and per family label.
+/// Key of one contribution: family label, ionized channel, recombined channel, half cycle.
+pub type PieceKey = (FamilyLabel, usize, usize, i32);
+
+/// The dipole of one sample per energy, total, per family label, and per contribution.
 #[derive(Clone, Debug, PartialEq)]
 pub struct FamilyDipoles {
     /// Driving polarization axis ê.
@@ -24,6 +27,11 @@ pub struct FamilyDipoles {
     /// Per family label, the coherent sum over channel pairs and half cycles (failed points
     /// count as zero and make the row incomplete).
     pub families: BTreeMap<FamilyLabel, Vec<CVec3>>,
+    /// Per contribution (one family of one channel pair on one half cycle): the pieces whose
+    /// dipole phase varies smoothly with the intensity, which the axis build-up interpolates
+    /// one by one (a family label's sum can pass near zero as its pieces interfere). Empty:
+    /// the build-up interpolates the labels' sums.
+    pub pieces: BTreeMap<PieceKey, Vec<CVec3>>,
     /// Whether every family that should contribute converged, per energy.
     pub complete: Vec<bool>,
 }
@@ -33,8 +41,17 @@ impl FamilyDipoles {
     pub fn of(spectrum: &MultichannelSpectrum) -> Self {
         let n = spectrum.energies.len();
         let mut families: BTreeMap<FamilyLabel, Vec<CVec3>> = BTreeMap::new();
+        let mut pieces: BTreeMap<PieceKey, Vec<CVec3>> = BTreeMap::new();
         for pair in &spectrum.pairs {
             for c in &pair.families {
+                let piece = pieces
+                    .entry((c.label, pair.ion, pair.rec, c.half_cycle))
+                    .or_insert_with(|| vec![CVec3::zeros(); n]);
+                for (a, d) in piece.iter_mut().zip(&c.dipole) {
+                    if let Some(d) = d {
+                        *a += d;
+                    }
+                }
                 let acc = families
                     .entry(c.label)
                     .or_insert_with(|| vec![CVec3::zeros(); n]);
@@ -49,6 +66,7 @@ impl FamilyDipoles {
             axis: spectrum.axis,
             total: spectrum.total.clone(),
             families,
+            pieces,
             complete: spectrum.complete.clone(),
         }
     }

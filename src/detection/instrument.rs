@@ -301,7 +301,10 @@ impl Detector {
     /// Non-positive thicknesses, widths, window or step.
     pub fn validate(&self) -> Result<()> {
         for f in &self.filters {
-            require_positive(&format!("{} table_thickness", f.table.name()), f.table_thickness)?;
+            require_positive(
+                &format!("{} table_thickness", f.table.name()),
+                f.table_thickness,
+            )?;
             require_positive(&format!("{} thickness", f.table.name()), f.thickness)?;
         }
         match self.resolution {
@@ -348,7 +351,10 @@ impl Detector {
         }
         let half = 0.5 * self.line_window;
         let orders = || {
-            let (lo, hi) = (energies_ev[0] / omega_ev, energies_ev[energies_ev.len() - 1] / omega_ev);
+            let (lo, hi) = (
+                energies_ev[0] / omega_ev,
+                energies_ev[energies_ev.len() - 1] / omega_ev,
+            );
             (lo.ceil() as i64)..=(hi.floor() as i64)
         };
         match kind {
@@ -366,7 +372,8 @@ impl Detector {
                     // Lines stay lines: each window holds the lines inside it.
                     let lines = orders()
                         .map(|q| {
-                            let (a, b) = ((q as f64 - half) * omega_ev, (q as f64 + half) * omega_ev);
+                            let (a, b) =
+                                ((q as f64 - half) * omega_ev, (q as f64 + half) * omega_ev);
                             LineYield {
                                 order: q,
                                 energy_ev: q as f64 * omega_ev,

@@ -158,12 +158,9 @@ pub fn intensity_samples(
             .collect())
     } else {
         // Square-root edge at the peak: Gauss–Legendre in v = sqrt(−u).
-        let (nodes, weights) = crate::special::gauss_legendre::gauss_legendre_interval(
-            rule.samples,
-            0.0,
-            span.sqrt(),
-        )
-        .map_err(|e| Error::Numerical(format!("intensity rule: {e}")))?;
+        let (nodes, weights) =
+            crate::special::gauss_legendre::gauss_legendre_interval(rule.samples, 0.0, span.sqrt())
+                .map_err(|e| Error::Numerical(format!("intensity rule: {e}")))?;
         Ok(nodes
             .iter()
             .zip(&weights)

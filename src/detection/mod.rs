@@ -23,6 +23,7 @@ pub mod beam;
 pub mod buildup;
 pub mod driver;
 pub mod families;
+pub mod figure;
 pub mod incoherent;
 pub mod instrument;
 pub mod intensity_rule;

@@ -302,7 +302,9 @@ fn not_for(key: &str, combination: &str) -> Error {
     Error::invalid(
         key,
         "given",
-        &format!("applies to the combination \"{combination}\" only; remove it or change medium.combination"),
+        &format!(
+            "applies to the combination \"{combination}\" only; remove it or change medium.combination"
+        ),
     )
 }
 
@@ -312,7 +314,8 @@ impl SetupSpec {
     /// # Errors
     /// The JSON error with its line and column.
     pub fn from_json(text: &str) -> Result<Self> {
-        serde_json::from_str(text).map_err(|e| Error::invalid("setup file", "the JSON", &e.to_string()))
+        serde_json::from_str(text)
+            .map_err(|e| Error::invalid("setup file", "the JSON", &e.to_string()))
     }
 
     /// Validates and converts to atomic units.
@@ -363,7 +366,10 @@ impl SetupSpec {
                 thickness_mm,
             } => Medium::ThinSlab {
                 position: mm(require_finite("medium.geometry.position_mm", position_mm)?),
-                thickness: mm(require_positive("medium.geometry.thickness_mm", thickness_mm)?),
+                thickness: mm(require_positive(
+                    "medium.geometry.thickness_mm",
+                    thickness_mm,
+                )?),
             },
         };
         let density = per_cm3_to_au(require_positive("medium.density_cm3", m.density_cm3)?);
@@ -372,13 +378,18 @@ impl SetupSpec {
             return Err(Error::invalid(
                 "medium.intensity_samples",
                 samples,
-                &format!("must be between 1 and {MAX_SAMPLES} (each sample is a full single-molecule run)"),
+                &format!(
+                    "must be between 1 and {MAX_SAMPLES} (each sample is a full single-molecule run)"
+                ),
             ));
         }
         let coherent = m.combination == Combination::CoherentAxis;
         if coherent {
             if m.lowest_intensity_fraction.is_some() {
-                return Err(not_for("medium.lowest_intensity_fraction", "incoherent-volume"));
+                return Err(not_for(
+                    "medium.lowest_intensity_fraction",
+                    "incoherent-volume",
+                ));
             }
             if medium == Medium::Unbounded {
                 return Err(Error::invalid(
@@ -408,7 +419,9 @@ impl SetupSpec {
                 ));
             }
         }
-        let lowest = m.lowest_intensity_fraction.unwrap_or(DEFAULT_LOWEST_FRACTION);
+        let lowest = m
+            .lowest_intensity_fraction
+            .unwrap_or(DEFAULT_LOWEST_FRACTION);
         if !(lowest > 0.0 && lowest < 1.0) {
             return Err(Error::invalid(
                 "medium.lowest_intensity_fraction",
@@ -426,7 +439,10 @@ impl SetupSpec {
         }
         let ir = require_finite("medium.ir_refractivity", m.ir_refractivity.unwrap_or(0.0))?;
         let xuv = require_finite("medium.xuv_refractivity", m.xuv_refractivity.unwrap_or(0.0))?;
-        for (key, v) in [("medium.ir_refractivity", ir), ("medium.xuv_refractivity", xuv)] {
+        for (key, v) in [
+            ("medium.ir_refractivity", ir),
+            ("medium.xuv_refractivity", xuv),
+        ] {
             if v.abs() >= 0.1 {
                 return Err(Error::invalid(
                     key,

@@ -118,8 +118,9 @@ impl Medium {
         let (w0, zr) = (beam.waist(), beam.rayleigh());
         let pi = std::f64::consts::PI;
         match *self {
-            Medium::Unbounded => pi * w0 * w0 * zr / 3.0 * (1.0 + 2.0 * x) * (1.0 - x).sqrt()
-                / x.powf(2.5),
+            Medium::Unbounded => {
+                pi * w0 * w0 * zr / 3.0 * (1.0 + 2.0 * x) * (1.0 - x).sqrt() / x.powf(2.5)
+            }
             Medium::ThinSlab {
                 position,
                 thickness,
