@@ -245,6 +245,7 @@ pub fn files(
         y: (0..e_ev.len()).map(|k| single.power(k)).collect(),
         colour: "#777777",
         dashed: true,
+        scale_with: 0,
     }];
     for label in outcome.source_families.keys() {
         if let Some(d) = single_families.families.get(label) {
@@ -257,6 +258,7 @@ pub fn files(
                     .collect(),
                 colour: colour(&label.to_string()),
                 dashed: true,
+                scale_with: 0,
             });
         }
     }
@@ -326,12 +328,14 @@ pub fn files(
             } else {
                 (set.total.energy_ev.clone(), set.total.per_ev.clone())
             };
+            let total = curves.len();
             curves.push(Curve {
                 label: "detected".into(),
                 x,
                 y,
                 colour: "#000000",
                 dashed: false,
+                scale_with: total,
             });
             for (label, f) in &set.families {
                 curves.push(Curve {
@@ -340,16 +344,19 @@ pub fn files(
                     y: f.per_ev.clone(),
                     colour: colour(&label.to_string()),
                     dashed: false,
+                    scale_with: total,
                 });
             }
         }
         None => {
+            let total = curves.len();
             curves.push(Curve {
                 label: "medium".into(),
                 x: e_ev.clone(),
                 y: outcome.source_total.clone(),
                 colour: "#000000",
                 dashed: false,
+                scale_with: total,
             });
             for (label, v) in &outcome.source_families {
                 curves.push(Curve {
@@ -358,6 +365,7 @@ pub fn files(
                     y: v.clone(),
                     colour: colour(&label.to_string()),
                     dashed: false,
+                    scale_with: total,
                 });
             }
         }

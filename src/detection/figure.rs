@@ -1,9 +1,10 @@
 //! The detection figure: the single-molecule spectrum at the peak intensity and the detected
 //! spectrum on one log axis, total and per family (SVG text; the binary writes it).
 //!
-//! Each curve is normalised to its own maximum (the single-molecule and detected spectra have
-//! different units and scales); the figure compares shapes: where the medium selects a family,
-//! where the filter cuts, how the resolution shapes the lines.
+//! The single-molecule and the detected spectra have different units and scales: each total is
+//! normalised to its own maximum and each family to the maximum of its total, so the figure
+//! compares shapes and shares: where the medium selects a family, where the filter cuts, how the
+//! resolution shapes the lines.
 
 use std::fmt::Write;
 
@@ -20,6 +21,9 @@ pub struct Curve {
     pub colour: &'static str,
     /// Dashed (single-molecule) or solid (detected).
     pub dashed: bool,
+    /// Index of the curve whose maximum normalises this one (a family is drawn relative to its
+    /// total, so that the families' shares stay visible).
+    pub scale_with: usize,
 }
 
 /// Decades shown below each curve's maximum.
@@ -90,7 +94,7 @@ pub fn detection_figure(title: &str, curves: &[Curve]) -> String {
     );
     let _ = writeln!(
         s,
-        r#"<text x="18" y="{}" text-anchor="middle" transform="rotate(-90 18 {})">relative to each curve's maximum</text>"#,
+        r#"<text x="18" y="{}" text-anchor="middle" transform="rotate(-90 18 {})">relative to the maximum of each total</text>"#,
         top + ph / 2.0,
         top + ph / 2.0
     );
