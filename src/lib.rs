@@ -5,6 +5,7 @@ pub mod address;
 pub mod classical;
 pub mod cmath;
 pub mod cutoff;
+pub mod detection;
 pub mod dipole;
 pub mod error;
 pub mod field;

@@ -296,9 +296,45 @@ pub struct SpectrumArgs {
     pub momentum_integral: Option<MomentumArg>,
     #[command(flatten)]
     pub model: ModelArgs,
+    #[command(flatten)]
+    pub detection: DetectionArgs,
     /// Output folder (created if missing).
     #[arg(long, value_name = "DIR")]
     pub out: PathBuf,
+}
+
+/// The detection layer on `spectrum` (docs/setup-file.md): a setup file, and flags for the
+/// common case of a gas jet added coherently along the axis. Any of them writes
+/// detected.json, detected.csv, detected-lines.csv and detected.svg beside the spectrum.
+#[derive(Debug, Args, Clone, Default)]
+pub struct DetectionArgs {
+    /// Setup file (JSON: beam, medium, detector; docs/setup-file.md).
+    #[arg(long, value_name = "FILE")]
+    pub setup: Option<PathBuf>,
+    /// Gas jet centre relative to the focus (mm; > 0 after the focus). Without --setup: a slab
+    /// added coherently along the axis, no dispersion, no detector.
+    #[arg(long, value_name = "MM", allow_negative_numbers = true)]
+    pub jet_position_mm: Option<f64>,
+    /// Gas jet length (mm) [default without --setup: 1].
+    #[arg(long, value_name = "MM", allow_negative_numbers = true)]
+    pub jet_length_mm: Option<f64>,
+    /// Beam waist at the focus (µm) [default without --setup: 50].
+    #[arg(long, value_name = "UM", allow_negative_numbers = true)]
+    pub waist_um: Option<f64>,
+    /// Single-molecule runs (intensity samples) of the detection layer [default: 16].
+    #[arg(long, value_name = "N")]
+    pub intensity_samples: Option<usize>,
+}
+
+impl DetectionArgs {
+    /// Whether any detection option was given.
+    pub fn any(&self) -> bool {
+        self.setup.is_some()
+            || self.jet_position_mm.is_some()
+            || self.jet_length_mm.is_some()
+            || self.waist_um.is_some()
+            || self.intensity_samples.is_some()
+    }
 }
 
 /// `holecast holes`.

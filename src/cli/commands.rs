@@ -358,6 +358,8 @@ fn orbit_text(rows: &dyn RowSource, w: &mut dyn std::io::Write) -> std::io::Resu
 /// Everything a spectrum or holes run produced.
 struct Run {
     target: LoadedTarget,
+    /// The multichannel settings of the run (saddle method).
+    settings: MultichannelSettings,
     meta: Map<String, Value>,
     laser: LaserSpec,
     orbit: OrbitSettings,
@@ -641,6 +643,7 @@ fn run(
     }
     Ok(Run {
         target: loaded.target,
+        settings,
         meta,
         laser: loaded.laser,
         orbit: loaded.orbit,
@@ -844,6 +847,18 @@ const HOLES_NAMES: [&str; 3] = ["holes.json", "holes.csv", "holes.svg"];
 /// `holecast spectrum`.
 pub fn spectrum(args: &SpectrumArgs, global: &Global) -> Result<()> {
     check_method_options(args)?;
+    // The detection layer's setup is read and checked before any work.
+    let detection = if args.detection.any() {
+        if args.method == MethodArg::Quadrature {
+            bail!(
+                "--setup and the detection flags use the saddle method (one trajectory stage per \
+                 intensity sample); drop --method quadrature"
+            );
+        }
+        Some(super::detected::setup(&args.detection)?)
+    } else {
+        None
+    };
     let quadrature = quadrature_settings(
         args.method,
         args.excursion_cycles,
@@ -923,7 +938,52 @@ pub fn spectrum(args: &SpectrumArgs, global: &Global) -> Result<()> {
         files.extend(hole_files(&run, rows, &summary));
         files.extend(hole_svg);
     }
-    let written = write_set(&args.out, "spectrum", files, &SPECTRUM_NAMES)
+    if let Some((spec, setup)) = &detection {
+        let progress = global.progress();
+        let bar = progress.bar("detection: single-molecule runs", "intensity samples");
+        let report = |done: usize, total: usize| {
+            bar.set_length(total as u64);
+            bar.set_position(done as u64);
+        };
+        let settings = MultichannelSettings {
+            group_delays: GroupDelays::Skip,
+            ..run.settings
+        };
+        let outcome = holecast::detection::detect(
+            &run.field,
+            &run.target.target,
+            &run.energies,
+            &settings,
+            setup,
+            &report,
+        );
+        bar.finish_and_clear();
+        let outcome = outcome.context("detection layer")?;
+        // The layer's own notes (their codes are in detected.json's "notes").
+        for n in &outcome.notes {
+            eprintln!(
+                "warning [detection-{}]: {} (what to do: {})",
+                n.code, n.message, n.advice
+            );
+        }
+        let mut meta = run.meta.clone();
+        meta.insert("warnings".into(), run.warnings.json());
+        let detected = super::detected::files(
+            &outcome,
+            spec,
+            args.detection.setup.as_deref(),
+            &meta,
+            &run.spectrum,
+            &format!("{} — single molecule and detected", run.target.target.name),
+        )?;
+        for (name, bytes) in detected {
+            let produce: Producer<'_> = Box::new(move |w| w.write_all(&bytes));
+            files.push((name, produce));
+        }
+    }
+    let mut names: Vec<&str> = SPECTRUM_NAMES.to_vec();
+    names.extend(super::detected::NAMES);
+    let written = write_set(&args.out, "spectrum", files, &names)
         .with_context(|| format!("writing the outputs into {}", args.out.display()))?;
     report_written(&written, global.quiet);
     run.warnings.print();

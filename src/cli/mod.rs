@@ -5,6 +5,7 @@ pub mod args;
 pub mod check;
 pub mod commands;
 pub mod describe;
+pub mod detected;
 pub mod figures;
 pub mod interrupt;
 pub mod limits;
