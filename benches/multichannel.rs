@@ -6,7 +6,7 @@ use std::hint::black_box;
 
 use criterion::{Criterion, criterion_group, criterion_main};
 use holecast::laser::LaserSpec;
-use holecast::multichannel::{MultichannelSettings, assemble, trajectory_stage};
+use holecast::multichannel::{GroupDelays, MultichannelSettings, assemble, trajectory_stage};
 use holecast::target::{OrientationSpec, TargetSpec};
 
 fn benches(c: &mut Criterion) {
@@ -26,9 +26,12 @@ fn benches(c: &mut Criterion) {
     let energies: Vec<f64> = (0..=250).map(|k| (9.0 + 0.1 * k as f64) * w).collect();
     let mut group = c.benchmark_group("multichannel");
     group.sample_size(10);
-    for (name, step) in [("with_group_delay", Some(1e-3)), ("no_group_delay", None)] {
+    for (name, step) in [
+        ("with_group_delay", GroupDelays::Tangent),
+        ("no_group_delay", GroupDelays::Skip),
+    ] {
         let settings = MultichannelSettings {
-            group_delay_step: step,
+            group_delays: step,
             ..MultichannelSettings::default()
         };
         group.bench_function(format!("trajectory_stage_9_pairs_{name}"), |b| {

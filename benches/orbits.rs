@@ -9,7 +9,7 @@ use criterion::{Criterion, criterion_group, criterion_main};
 use holecast::dipole::SaddleSum;
 use holecast::ionization::IonizationModel;
 use holecast::laser::LaserSpec;
-use holecast::multichannel::{MultichannelSettings, StructurePlacement, spectrum};
+use holecast::multichannel::{GroupDelays, MultichannelSettings, StructurePlacement, spectrum};
 use holecast::orbits::{ChannelPair, DiscoverySettings, OrbitSettings, families, solve_orbits};
 use holecast::recombination::RecombinationModel;
 use holecast::target::Target;
@@ -52,10 +52,13 @@ fn benches(c: &mut Criterion) {
         (StructurePlacement::Prefactor, "prefactor"),
         (StructurePlacement::Phase, "phase"),
     ] {
-        for (name, delay) in [("with_group_delay", Some(1e-3)), ("no_group_delay", None)] {
+        for (name, delay) in [
+            ("with_group_delay", GroupDelays::Tangent),
+            ("no_group_delay", GroupDelays::Skip),
+        ] {
             let s = MultichannelSettings {
                 sum: SaddleSum::Uniform,
-                group_delay_step: delay,
+                group_delays: delay,
                 ionization_structure: placement,
                 ..MultichannelSettings::default()
             };

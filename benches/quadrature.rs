@@ -32,7 +32,7 @@ fn target(path: &str) -> Target {
 fn saddle(field: &Field, t: &Target, e: &[f64]) -> usize {
     let s = MultichannelSettings {
         sum: SaddleSum::Uniform,
-        group_delay_step: None,
+        group_delays: holecast::multichannel::GroupDelays::Skip,
         ..MultichannelSettings::default()
     };
     let stage = trajectory_stage(field, t, e, &s).unwrap();

@@ -1,9 +1,12 @@
 #!/usr/bin/env python3
 """Runs the criterion benchmarks and prints the figures the issues ask for.
 
-Usage: python3 scripts/bench_figures.py [--no-run] [bench ...]
-  --no-run   only read the last results under target/criterion ($CARGO_TARGET_DIR/criterion
-             when that variable is set)
+Usage: python3 scripts/bench_figures.py [--no-run] [--commands[=BINARY]] [bench ...]
+  --no-run     only read the last results under target/criterion ($CARGO_TARGET_DIR/criterion
+               when that variable is set)
+  --commands   also time whole output commands of the release binary (default
+               target/release/holecast; build it first): wall time and peak memory (max RSS from
+               /usr/bin/time -v), minimum of 5 runs each
 """
 import json
 import os
@@ -41,9 +44,10 @@ def show(label, bench_id, per=None, unit=None):
 def main():
     args = [a for a in sys.argv[1:] if not a.startswith("--")]
     if "--no-run" not in sys.argv:
-        benches = args or ["orbits", "multichannel", "quadrature"]
+        benches = args or ["orbits", "multichannel", "threads", "quadrature", "output"]
         for b in benches:
-            subprocess.run(["cargo", "bench", "--bench", b, "--", "--noplot"], cwd=ROOT, check=True)
+            subprocess.run(["cargo", "bench", "--features", "benchmarks", "--bench", b, "--", "--noplot"],
+                           cwd=ROOT, check=True)
     print("\nholecast benchmark figures (mean ± standard error of criterion's estimate)\n")
     show("trajectory stage: 3001 energies × 4 families", "orbits/continuation_12004_saddles", 12004, "saddle solutions")
     show("family discovery (classical seeds, once per field)", "orbits/family_discovery")
@@ -60,6 +64,15 @@ def main():
         show(f"  whole spectrum ({name.replace('_', ' ')})", f"multichannel/whole_spectrum_{name}")
     show("bent triatomic (2 channels, structure in the phase), 192 orientations, whole spectrum",
          "multichannel/whole_spectrum_bent_triatomic_192_orientations")
+    print("\nthread scaling of the whole spectrum, default settings (benches/threads.rs):")
+    for name in ["linear_triatomic", "bent_triatomic"]:
+        one = f"threads/whole_spectrum_{name}_1_threads"
+        two = f"threads/whole_spectrum_{name}_2_threads"
+        show(f"  {name.replace('_', ' ')}, 1 thread", one)
+        show(f"  {name.replace('_', ' ')}, 2 threads", two)
+        a, b = mean_seconds(one), mean_seconds(two)
+        if a is not None and b is not None:
+            print(f"  {'→ speed-up with 2 threads':56s} {a[0] / b[0]:10.2f}")
     print("\nsaddle path against quadrature, same work (benches/quadrature.rs)\n")
     pairs = [
         ("hydrogen, 800 nm, H11–H41 (31 lines)", "quadrature/saddle_hydrogen_800nm_H11_H41",
@@ -78,6 +91,62 @@ def main():
             q = mean_seconds(qid)
             if s is not None and q is not None:
                 print(f"  {'→ time(quadrature) / time(saddle)':56s} {q[0] / s[0]:10.2f}")
+    output_figures()
+    for a in sys.argv[1:]:
+        if a.startswith("--commands"):
+            binary = a.split("=", 1)[1] if "=" in a else str(ROOT / "target" / "release" / "holecast")
+            time_commands(binary)
+
+
+def rows_of(bench_id):
+    """The row count a bench declared as its throughput (criterion's benchmark.json)."""
+    path = CRITERION / bench_id / "new" / "benchmark.json"
+    if not path.exists():
+        return None
+    t = json.loads(path.read_text()).get("throughput") or {}
+    return t.get("Elements")
+
+
+OUTPUT_COMMANDS = [
+    # The case of issue 10: 100,610 orbit rows.
+    ("orbits H11–H41 Δq = 0.001, JSON to stdout", ["orbits", "--ip", "15.76", "--intensity", "1.5e14",
+      "--wavelength", "800", "--orders", "11:41:0.001", "--format", "json", "--quiet"]),
+    ("orbits H11–H41 Δq = 0.001, CSV to stdout", ["orbits", "--ip", "15.76", "--intensity", "1.5e14",
+      "--wavelength", "800", "--orders", "11:41:0.001", "--format", "csv", "--quiet"]),
+]
+
+
+def time_commands(binary, runs=5):
+    """Minimum wall time and peak memory of each output command (stdout to /dev/null)."""
+    import re
+    import time
+    print(f"\nwhole commands ({binary}; minimum of {runs} runs; max RSS from /usr/bin/time -v)\n")
+    for label, args in OUTPUT_COMMANDS:
+        walls, rss = [], []
+        for _ in range(runs):
+            t0 = time.perf_counter()
+            r = subprocess.run(["/usr/bin/time", "-v", binary, *args], stdout=subprocess.DEVNULL,
+                               stderr=subprocess.PIPE, text=True, check=True)
+            walls.append(time.perf_counter() - t0)
+            m = re.search(r"Maximum resident set size \(kbytes\): (\d+)", r.stderr)
+            if m:
+                rss.append(int(m.group(1)) / 1024)
+        peak = f"{min(rss):8.1f} MB" if rss else "   (no /usr/bin/time)"
+        print(f"{label:58s} {min(walls):8.3f} s   peak {peak}")
+
+
+def output_figures():
+    print("\noutput writers (benches/output.rs; rows streamed into a byte counter, no file system)\n")
+    for label, bench_id in [
+        ("orbit rows built, not written (H11–H41, Δq = 0.001)", "output/orbits_rows_only"),
+        ("orbit rows as JSON", "output/orbits_json"),
+        ("orbit rows as CSV", "output/orbits_csv"),
+        ("demo spectrum rows, JSON + CSV (H9–H39, Δq = 0.1)", "output/spectrum_json_csv_demo_301_rows"),
+        ("demo hole rows, JSON + CSV", "output/holes_json_csv_demo"),
+    ]:
+        show(label, bench_id, rows_of(bench_id), "rows")
+    print("  whole command with files and peak memory: /usr/bin/time -v target/release/holecast orbits "
+          "channels/hydrogen.json --intensity 2e14 --wavelength 800 --orders 11:41:0.001 --format json")
 
 
 if __name__ == "__main__":

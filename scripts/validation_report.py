@@ -332,7 +332,11 @@ def analyse(name, saddle, quad, short, omega_ev, ip_ev, up_ev):
 
 # --- SVG -------------------------------------------------------------------------------------
 
-COLOURS = ["#1f4e9c", "#c0392b", "#2e8b57", "#7d3c98"]
+# The colours of every holecast figure (src/report/svg/palette.rs): the Okabe–Ito palette
+# (M. Okabe and K. Ito, "Color Universal Design", 2008; B. Wong, Nature Methods 8, 441 (2011)),
+# readable for colour-blind readers; the dashes of the second curve keep it apart in greyscale.
+OKABE_ITO = ["#0072B2", "#D55E00", "#009E73", "#CC79A7", "#E69F00", "#56B4E9"]
+COLOURS = OKABE_ITO
 
 
 def panel(x0, y0, w, h, series, title, xlabel, ylabel, yrange=None):

@@ -35,8 +35,10 @@ pub struct Cutoffs {
     /// The coalescence point behind `quantum`.
     pub coalescence: Option<Coalescence>,
     /// `Ip + 3.17 Up`-type formula with the quantum correction, `3.17 Up + 1.32 Ip`
-    /// (M. Lewenstein et al., PRA 49, 2117 (1994)), for a monochromatic linear field.
-    pub lewenstein: f64,
+    /// (M. Lewenstein et al., PRA 49, 2117 (1994)), derived for a monochromatic, linearly
+    /// polarised, continuous field: None for every other field ([`lewenstein_applies`]), where
+    /// the half cycles' own cutoffs are the ones to quote.
+    pub lewenstein: Option<f64>,
     /// Crest index of the strongest half cycle (None if no electron returns).
     pub strongest_half_cycle: Option<i32>,
     /// True when [`cutoffs`] could not do the work within the limits: `classical` is then the
@@ -52,6 +54,17 @@ pub struct CutoffReport {
     pub cutoffs: Cutoffs,
     /// Every first-return half cycle: `(crest index, cutoff)`, in time order.
     pub half_cycles: Vec<(i32, HalfCycleCutoff)>,
+}
+
+/// Whether the formula `3.17 Up + 1.32 Ip` (Lewenstein et al. 1994) applies: one colour,
+/// linearly polarised, without envelope (a single mode of the vector potential along one
+/// axis). Not for elliptical, two-colour or pulsed fields.
+pub fn lewenstein_applies(field: &Field) -> bool {
+    matches!(
+        field.structure(),
+        crate::field::TimeStructure::Periodic { .. }
+    ) && field.modes().len() == 1
+        && field.linear_axis().is_some()
 }
 
 /// Classical return maximum over every crest of the field (a.u.), from a dense scan of birth
@@ -113,7 +126,7 @@ pub fn half_cycle_cutoffs(
             classical,
             quantum: coalescence.map(|c| c.omega.re),
             coalescence,
-            lewenstein: 3.17 * up + 1.32 * pair.ip_ion,
+            lewenstein: lewenstein_applies(field).then_some(3.17 * up + 1.32 * pair.ip_ion),
             strongest_half_cycle: top.map(|(h, _)| h),
             work_limited: false,
         },
@@ -137,7 +150,7 @@ pub fn cutoffs(field: &Field, pair: ChannelPair, settings: &OrbitSettings) -> Cu
         classical: pair.ip_rec + 3.173_136_566_7 * up,
         quantum: None,
         coalescence: None,
-        lewenstein: 3.17 * up + 1.32 * pair.ip_ion,
+        lewenstein: lewenstein_applies(field).then_some(3.17 * up + 1.32 * pair.ip_ion),
         strongest_half_cycle: None,
         work_limited: matches!(e, Error::WorkLimit { .. }),
     })

@@ -90,7 +90,8 @@ fn spreading_and_gauss(s: &Saddle, epsilon: f64) -> Complex64 {
     let two_pi = 2.0 * std::f64::consts::PI;
     // With Gaussian structure in the phase the momentum integral's width adds to ε + iτ.
     let w = two_pi / (Complex64::new(epsilon + s.width, 0.0) + Complex64::i() * s.tau);
-    let spreading = w * w.sqrt();
+    // Principal root (Re(ε + iτ + w) > 0 on physical saddles, so w stays off the cut).
+    let spreading = w * crate::cmath::sqrt(w);
     Complex64::new(0.0, -1.0) * spreading * (two_pi / s.hessian_root)
 }
 
@@ -154,12 +155,17 @@ pub fn kernels(table: &OrbitTable, sum: SaddleSum, epsilon: f64) -> Kernels {
         kind: KernelKind::Failed,
     };
     let mut values = vec![vec![failed; n]; table.families.len()];
+    // The spreading and Gaussian factors of every solved saddle, computed once (the uniform
+    // kernels below reuse them).
+    let mut factors = vec![vec![Complex64::new(0.0, 0.0); n]; table.families.len()];
     for (f, (family, row)) in table.families.iter().zip(values.iter_mut()).enumerate() {
         for (k, (point, slot)) in family.points.iter().zip(row.iter_mut()).enumerate() {
             if let Some(s) = point.saddle() {
+                let g = spreading_and_gauss(s, epsilon);
+                factors[f][k] = g;
                 *slot = if table.is_physical(f, k) {
                     Kernel {
-                        value: continuum_kernel(s, epsilon),
+                        value: g * (Complex64::i() * s.action).exp(),
                         kind: KernelKind::Plain,
                     }
                 } else {
@@ -179,8 +185,15 @@ pub fn kernels(table: &OrbitTable, sum: SaddleSum, epsilon: f64) -> Kernels {
                 let inside = table.inside_pulse(pair.minus, k) && table.inside_pulse(pair.plus, k);
                 match (m, p, point) {
                     (Some(m), Some(p), Some(pp)) if inside => {
-                        let (km, kp) =
-                            uniform_pair(m, p, pp.zeta, pp.zeta_sqrt, pp.zeta_quarter, epsilon);
+                        let (w_minus, w_plus) = uniform_weights(
+                            m.action,
+                            p.action,
+                            pp.zeta,
+                            pp.zeta_sqrt,
+                            pp.zeta_quarter,
+                        );
+                        let km = factors[pair.minus][k] * w_minus;
+                        let kp = factors[pair.plus][k] * w_plus;
                         values[pair.minus][k] = Kernel {
                             value: km,
                             kind: KernelKind::Uniform,

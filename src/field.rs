@@ -445,8 +445,21 @@ impl Field {
     /// `A`, `E`, `∫A` and `∫A·A` at complex time `t`.
     #[inline]
     pub fn at(&self, t: Complex64) -> FieldPoint {
+        // The exponentials of the modes go into a stack array sized for the field (one or two
+        // modes for monochromatic and two-colour fields), so that the common case does not
+        // clear room for the largest field.
+        match self.modes.len() {
+            0..=2 => self.at_sized::<4>(t),
+            3..=4 => self.at_sized::<8>(t),
+            _ => self.at_sized::<{ 2 * MAX_MODES }>(t),
+        }
+    }
+
+    /// [`Field::at`] with room for `N/2` modes (`N ≥ 2 × self.modes.len()`).
+    #[inline(always)]
+    fn at_sized<const N: usize>(&self, t: Complex64) -> FieldPoint {
         let zero = Complex64::new(0.0, 0.0);
-        let mut x = [zero; 2 * MAX_MODES];
+        let mut x = [zero; N];
         let (mut a, mut e, mut ia) = ([zero; 3], [zero; 3], [zero; 3]);
         for (j, m) in self.modes.iter().enumerate() {
             let nu = m.frequency;
@@ -519,6 +532,25 @@ impl Field {
             CVec3::new(e[0], e[1], e[2]),
             CVec3::new(de[0], de[1], de[2]),
         )
+    }
+
+    /// Real electric field at real time `t` from the same closed form as [`Field::at`]
+    /// (`E = Re Σ iν c e^{−iνt}` per component), without the other quantities (one `sin_cos`
+    /// per mode, no exponentials).
+    #[inline]
+    pub fn electric_at_real(&self, t: f64) -> Vector3<f64> {
+        let mut e = [0.0; 3];
+        for m in &self.modes {
+            let nu = m.frequency;
+            let (s, c) = (nu * t).sin_cos();
+            for &k in &self.active {
+                // p − q = c_k e^{−iνt} − c_k* e^{iνt} = 2i Im(c_k e^{−iνt}); E_k = Re(iν(p − q)).
+                let a = m.amplitude[k];
+                let im = a.im * c - a.re * s;
+                e[k] += -nu * 2.0 * im;
+            }
+        }
+        Vector3::new(e[0], e[1], e[2])
     }
 
     /// Real vector potential, electric field and `∫A` at real time `t`.

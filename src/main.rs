@@ -27,6 +27,9 @@ fn main() -> ExitCode {
             Command::Orbits(a) => cli::commands::orbits(a, &global),
             Command::Spectrum(a) => cli::commands::spectrum(a, &global),
             Command::Holes(a) => cli::commands::holes(a, &global),
+            Command::Scan(a) => cli::scan::scan(a, &global),
+            Command::ScanMerge(a) => cli::scan::merge(a, &global),
+            Command::ScanSlurm(a) => cli::scan::slurm(a, &global),
             Command::Fit(a) => cli::fit::fit(a, &global),
             Command::Synthetic(a) => cli::fit::synthetic(a, &global),
         }

@@ -38,7 +38,7 @@ fn run(dir: &std::path::Path, command: &str, extra: &[&str]) -> Value {
 fn defaults_are_the_library_defaults_and_are_recorded() {
     let dir = tempfile::tempdir().unwrap();
     let s = run(dir.path(), "spectrum", &[]);
-    let a = &s["approximations"];
+    let a = &s["provenance"]["approximations"];
     let lib = MultichannelSettings::default();
     assert_eq!(a["method"], "saddle");
     assert_eq!(a["saddle_sum"], serde_json::to_value(lib.sum).unwrap());
@@ -59,7 +59,10 @@ fn defaults_are_the_library_defaults_and_are_recorded() {
     assert_eq!(a["recombination_structure"], "auto");
     // The holes file carries the same record.
     let h = run(&dir.path().join("holes"), "holes", &[]);
-    assert_eq!(h["approximations"], s["approximations"]);
+    assert_eq!(
+        h["provenance"]["approximations"],
+        s["provenance"]["approximations"]
+    );
 }
 
 #[test]
@@ -78,9 +81,9 @@ fn options_change_the_record_and_the_numbers() {
             "prefactor",
         ],
     );
-    assert_eq!(frozen["approximations"]["hole_times"], "real");
+    assert_eq!(frozen["provenance"]["approximations"]["hole_times"], "real");
     assert_eq!(
-        frozen["approximations"]["ionization_structure"],
+        frozen["provenance"]["approximations"]["ionization_structure"],
         "prefactor"
     );
     let i = |v: &Value| v["points"][0]["intensity"].as_f64().unwrap();
@@ -98,6 +101,9 @@ fn options_change_the_record_and_the_numbers() {
             "stationary",
         ],
     );
-    assert_eq!(quad["approximations"]["method"], "quadrature");
-    assert_eq!(quad["approximations"]["momentum"], "stationary");
+    assert_eq!(quad["provenance"]["approximations"]["method"], "quadrature");
+    assert_eq!(
+        quad["provenance"]["approximations"]["momentum"],
+        "stationary"
+    );
 }

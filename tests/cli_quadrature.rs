@@ -41,10 +41,15 @@ fn quadrature_method_writes_the_same_rows_and_records_itself() {
     let dir = tempfile::tempdir().unwrap();
     let q = spectrum(&dir.path().join("q"), "quadrature");
     let s = spectrum(&dir.path().join("s"), "saddle");
-    assert_eq!(q["approximations"]["method"], "quadrature");
-    assert_eq!(s["approximations"]["method"], "saddle");
-    assert_eq!(s["approximations"]["hole_times"], "complex");
-    assert!(q["approximations"]["steps_per_cycle"].as_u64().unwrap() >= 16);
+    assert_eq!(q["provenance"]["approximations"]["method"], "quadrature");
+    assert_eq!(s["provenance"]["approximations"]["method"], "saddle");
+    assert_eq!(s["provenance"]["approximations"]["hole_times"], "complex");
+    assert!(
+        q["provenance"]["approximations"]["steps_per_cycle"]
+            .as_u64()
+            .unwrap()
+            >= 16
+    );
     let (qp, sp) = (
         q["points"].as_array().unwrap(),
         s["points"].as_array().unwrap(),

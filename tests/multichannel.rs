@@ -91,7 +91,7 @@ fn one_channel_target_equals_the_plain_saddle_sum() {
     let prefactor = MultichannelSettings {
         ionization_structure: StructurePlacement::Prefactor,
         recombination_structure: StructurePlacement::Prefactor,
-        group_delay_step: None,
+        group_delays: holecast::multichannel::GroupDelays::Skip,
         ..MultichannelSettings::default()
     };
     let direct = plain_sum(&target, &field, &energies, SaddleSum::Uniform);
@@ -155,12 +155,24 @@ fn permuting_channels_in_the_file_changes_no_number() {
     let settings = MultichannelSettings::default();
     let a = run(&spec.validate().unwrap(), &field, &energies, &settings);
     let b = run(&permuted.validate().unwrap(), &field, &energies, &settings);
-    let ta = holecast::report::spectrum::rows(&a).unwrap();
-    let tb = holecast::report::spectrum::rows(&b).unwrap();
-    assert_eq!(ta, tb);
-    let ha = holecast::report::spectrum::hole_rows(&a).unwrap();
-    let hb = holecast::report::spectrum::hole_rows(&b).unwrap();
-    assert_eq!(ha, hb);
+    use holecast::report::Table;
+    use holecast::report::spectrum::{HoleRows, SpectrumRows};
+    let rows = |s| {
+        Table::collect(&SpectrumRows {
+            spectrum: s,
+            grid: None,
+        })
+        .unwrap()
+    };
+    assert_eq!(rows(&a), rows(&b));
+    let holes = |s| {
+        Table::collect(&HoleRows {
+            spectrum: s,
+            grid: None,
+        })
+        .unwrap()
+    };
+    assert_eq!(holes(&a), holes(&b));
 }
 
 #[test]
@@ -195,7 +207,7 @@ fn isotropic_average_of_a_linear_molecule_converges_with_the_grid() {
     spec.alignment = holecast::orientation::AlignmentDescription::Isotropic {};
     let energies = orders(&field, (15..=31).step_by(2).map(f64::from));
     let settings = MultichannelSettings {
-        group_delay_step: None,
+        group_delays: holecast::multichannel::GroupDelays::Skip,
         ..MultichannelSettings::default()
     };
     let mut results = Vec::new();
@@ -432,7 +444,7 @@ fn two_centre_interference_minimum_appears_in_the_spectrum() {
         (StructurePlacement::Auto, 0.04),
     ] {
         let settings = MultichannelSettings {
-            group_delay_step: None,
+            group_delays: holecast::multichannel::GroupDelays::Skip,
             ionization_structure: placement,
             recombination_structure: placement,
             ..MultichannelSettings::default()
@@ -556,7 +568,7 @@ fn hole_densities_are_listed_only_for_saddles_that_contribute() {
     let target = load("demo-linear-triatomic.json").validate().unwrap();
     let energies = orders(&field, (21..=41).map(f64::from));
     let settings = MultichannelSettings {
-        group_delay_step: None,
+        group_delays: holecast::multichannel::GroupDelays::Skip,
         ..MultichannelSettings::default()
     };
     let stage = trajectory_stage(&field, &target, &energies, &settings).unwrap();

@@ -72,7 +72,7 @@ fn saddle(
 ) -> MultichannelSpectrum {
     let settings = MultichannelSettings {
         sum,
-        group_delay_step: None,
+        group_delays: holecast::multichannel::GroupDelays::Skip,
         ionization_structure: StructurePlacement::Prefactor,
         recombination_structure: StructurePlacement::Prefactor,
         hole_contour: HoleContour::Real,
@@ -338,7 +338,7 @@ fn exact_quadrature_meets_the_saddle_path_where_the_saddle_path_is_exact() {
         &target,
         &e,
         &MultichannelSettings {
-            group_delay_step: None,
+            group_delays: holecast::multichannel::GroupDelays::Skip,
             ..MultichannelSettings::default()
         },
     )
@@ -642,7 +642,7 @@ fn degenerate_coupled_channels_act_as_one_shifted_channel() {
         let run = |t: &Target| {
             let settings = MultichannelSettings {
                 sum: SaddleSum::Plain,
-                group_delay_step: None,
+                group_delays: holecast::multichannel::GroupDelays::Skip,
                 hole_contour: contour,
                 ..MultichannelSettings::default()
             };

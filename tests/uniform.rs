@@ -211,7 +211,7 @@ fn atom_spectrum(sum: SaddleSum, orders: &[f64]) -> MultichannelSpectrum {
     let energies: Vec<f64> = orders.iter().map(|q| q * w).collect();
     let settings = MultichannelSettings {
         sum,
-        group_delay_step: None,
+        group_delays: holecast::multichannel::GroupDelays::Skip,
         ..MultichannelSettings::default()
     };
     spectrum(&field, &target, &energies, &settings).unwrap()

@@ -47,7 +47,7 @@ fn run(target: &Target, intensity: f64, wavelength: f64, quad: QuadratureSetting
         target,
         &energies,
         &MultichannelSettings {
-            group_delay_step: None,
+            group_delays: holecast::multichannel::GroupDelays::Skip,
             ..MultichannelSettings::default()
         },
     )
@@ -212,7 +212,7 @@ fn rms_with(c: &Case, target: &Target, settings: MultichannelSettings) -> f64 {
         target,
         &energies,
         &MultichannelSettings {
-            group_delay_step: None,
+            group_delays: holecast::multichannel::GroupDelays::Skip,
             ..settings
         },
     )

@@ -53,6 +53,15 @@ pub enum Command {
     /// Compute the hole density matrix decoded by each harmonic and write holes.json,
     /// holes.csv and holes.svg (populations and coherences vs. return delay).
     Holes(HolesArgs),
+    /// Compute the spectrum over a grid of parameters (a scan file or --axis flags) and write
+    /// scan.npz, scan.csv and scan.svg; --shard K/N computes one part (see scan-merge).
+    Scan(super::scan::ScanArgs),
+    /// Merge the shard files of a scan into scan.npz, scan.csv and scan.svg (the same bytes a
+    /// single run writes).
+    ScanMerge(super::scan::MergeArgs),
+    /// Write Slurm batch scripts for a sharded scan (array job + merge job) and print the sbatch
+    /// lines that submit them.
+    ScanSlurm(super::scan::SlurmArgs),
     /// Fit model spectra to measured ones (fit.json, fit.csv, fit.svg, fitted-target.json);
     /// with --expected-noise, the expected uncertainties of planned datasets instead.
     Fit(super::fit::FitArgs),
@@ -171,6 +180,20 @@ pub enum HoleExpansionArg {
     Leading,
 }
 
+/// How `spectrum` computes the group delays dφ/dΩ.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum GroupDelaysArg {
+    /// Saddle method: from each saddle's own phase slope ∂Φ/∂Ω = t_r (exact) plus the slope of
+    /// the prefactors across the energy grid, no extra saddles (saddle default); by difference
+    /// where the grid does not resolve the prefactors, and on grids coarser than 0.25 orders.
+    Tangent,
+    /// Central difference over Ω ± 0.001ω, every saddle (or the quadrature's transform) computed
+    /// again at both ends: three times the work (quadrature default).
+    Difference,
+    /// No group delays (their columns are null).
+    Skip,
+}
+
 /// Where a side's Gaussian structure factors go.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
 pub enum StructureArg {
@@ -257,6 +280,10 @@ pub struct SpectrumArgs {
     /// Saddle method: saddle summation [default: uniform].
     #[arg(long, value_enum)]
     pub sum: Option<SumArg>,
+    /// How the group delays are computed, or skipped [default: tangent with the saddle method,
+    /// difference with the quadrature].
+    #[arg(long, value_enum)]
+    pub group_delays: Option<GroupDelaysArg>,
     /// Method: saddle points or numerical quadrature. Options marked "saddle method" or
     /// "quadrature" are refused with the other method.
     #[arg(long, value_enum, default_value_t = MethodArg::Saddle)]
@@ -274,9 +301,45 @@ pub struct SpectrumArgs {
     pub momentum_integral: Option<MomentumArg>,
     #[command(flatten)]
     pub model: ModelArgs,
+    #[command(flatten)]
+    pub detection: DetectionArgs,
     /// Output folder (created if missing).
     #[arg(long, value_name = "DIR")]
     pub out: PathBuf,
+}
+
+/// The detection layer on `spectrum` (docs/setup-file.md): a setup file, and flags for the
+/// common case of a gas jet added coherently along the axis. Any of them writes
+/// detected.json, detected.csv, detected-lines.csv and detected.svg beside the spectrum.
+#[derive(Debug, Args, Clone, Default)]
+pub struct DetectionArgs {
+    /// Setup file (JSON: beam, medium, detector; docs/setup-file.md).
+    #[arg(long, value_name = "FILE")]
+    pub setup: Option<PathBuf>,
+    /// Gas jet centre relative to the focus (mm; > 0 after the focus). Without --setup: a slab
+    /// added coherently along the axis, no dispersion, no detector.
+    #[arg(long, value_name = "MM", allow_negative_numbers = true)]
+    pub jet_position_mm: Option<f64>,
+    /// Gas jet length (mm) [default without --setup: 1].
+    #[arg(long, value_name = "MM", allow_negative_numbers = true)]
+    pub jet_length_mm: Option<f64>,
+    /// Beam waist at the focus (µm) [default without --setup: 50].
+    #[arg(long, value_name = "UM", allow_negative_numbers = true)]
+    pub waist_um: Option<f64>,
+    /// Single-molecule runs (intensity samples) of the detection layer [default: 16].
+    #[arg(long, value_name = "N")]
+    pub intensity_samples: Option<usize>,
+}
+
+impl DetectionArgs {
+    /// Whether any detection option was given.
+    pub fn any(&self) -> bool {
+        self.setup.is_some()
+            || self.jet_position_mm.is_some()
+            || self.jet_length_mm.is_some()
+            || self.waist_um.is_some()
+            || self.intensity_samples.is_some()
+    }
 }
 
 /// `holecast holes`.

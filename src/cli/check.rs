@@ -7,8 +7,10 @@ use std::fmt::Write as _;
 use anyhow::Result;
 use serde_json::Value;
 
+use holecast::cutoff::{half_cycle_cutoffs, lewenstein_applies};
 use holecast::field::{Field, TimeStructure};
 use holecast::multichannel::coupling_components;
+use holecast::orbits::ChannelPair;
 use holecast::target::Target;
 use holecast::units;
 
@@ -34,6 +36,10 @@ pub fn check(args: &CheckArgs, global: &Global) -> Result<()> {
         &loaded.laser,
         &loaded.field,
         &summaries,
+    );
+    meta.insert(
+        "provenance".into(),
+        super::provenance::provenance(&loaded, None, Value::Null),
     );
     meta.insert("warnings".into(), warnings.json());
     match args.format {
@@ -90,11 +96,20 @@ fn check_text(
     for line in laser_lines(&loaded.laser) {
         writeln!(out, "         {line}")?;
     }
-    writeln!(
-        out,
+    // The formula column only where the formula holds (one linear continuous colour).
+    let formula_applies = lewenstein_applies(field);
+    let mut header = String::new();
+    write!(
+        header,
         "\n{:<8} {:>9} {:>8}  {:>22}  {:>22}  {:>16}",
-        "channel", "Ip (eV)", "Keldysh", "classical cutoff", "quantum cutoff", "3.17Up+1.32Ip"
+        "channel",
+        "Ip (eV)",
+        "Keldysh",
+        "classical cutoff",
+        "quantum cutoff",
+        if formula_applies { "3.17Up+1.32Ip" } else { "" }
     )?;
+    writeln!(out, "{}", header.trim_end())?;
     for s in summaries {
         let (classical, quantum, formula) = match &s.cutoffs {
             Some(c) => (
@@ -109,16 +124,21 @@ fn check_text(
                     }
                     None => "not found".into(),
                 },
-                format!("{} eV", num(units::au_to_ev(c.lewenstein), 2)),
+                c.lewenstein
+                    .map(|l| format!("{} eV", num(units::au_to_ev(l), 2)))
+                    .unwrap_or_default(),
             ),
             None => (
                 "over the work limit".into(),
                 "over the work limit".into(),
-                "-".into(),
+                if formula_applies {
+                    "-".into()
+                } else {
+                    String::new()
+                },
             ),
         };
-        writeln!(
-            out,
+        let row = format!(
             "{:<8} {:>9} {:>8}  {:>22}  {:>22}  {:>16}",
             s.channel.label,
             num(units::au_to_ev(s.channel.ip), 3),
@@ -126,7 +146,47 @@ fn check_text(
             classical,
             quantum,
             formula
+        );
+        writeln!(out, "{}", row.trim_end())?;
+    }
+    if !formula_applies {
+        writeln!(
+            out,
+            "(3.17Up+1.32Ip, Lewenstein et al. 1994, is not shown: it holds for one linearly \
+             polarised continuous colour only)"
         )?;
+    }
+    if !field.half_wave_symmetric() {
+        // The half cycles differ: each has its own cutoff.
+        for s in summaries.iter().filter(|s| s.cutoffs.is_some()) {
+            let pair = ChannelPair::single(s.channel.ip);
+            if let Ok(r) = half_cycle_cutoffs(field, pair, &loaded.orbit) {
+                let parts: Vec<String> = r
+                    .half_cycles
+                    .iter()
+                    .filter_map(|(h, c)| {
+                        c.estimate(pair).map(|e| {
+                            format!(
+                                "{h}: {} eV (H{}{})",
+                                num(units::au_to_ev(e), 2),
+                                num(e / omega, 2),
+                                if c.quantum.is_some() {
+                                    ""
+                                } else {
+                                    ", estimate"
+                                }
+                            )
+                        })
+                    })
+                    .collect();
+                writeln!(
+                    out,
+                    "quantum cutoff per half cycle, channel {}: {}",
+                    s.channel.label,
+                    parts.join("; ")
+                )?;
+            }
+        }
     }
     writeln!(out, "\nstructure models")?;
     for s in summaries {

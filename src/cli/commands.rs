@@ -10,25 +10,30 @@ use holecast::dipole::SaddleSum;
 use holecast::field::Field;
 use holecast::laser::LaserSpec;
 use holecast::multichannel::{
-    HoleContour, HoleExpansion, MultichannelSettings, MultichannelSpectrum, StructurePlacement,
-    assemble, trajectory_stage,
+    GroupDelays, HoleContour, HoleExpansion, MultichannelSettings, MultichannelSpectrum,
+    StructurePlacement, assemble, refine_group_delays, trajectory_stage,
 };
 use holecast::orbits::{ChannelPair, OrbitSettings};
-use holecast::report::{self, Cell, orbits::LabelledTable, svg::Marker};
+use holecast::report::lattice::Lattice;
+use holecast::report::orbits::{LabelledTable, OrbitRows};
+use holecast::report::spectrum::{HoleRows, SpectrumRows};
+use holecast::report::{self, Cell, RowSource};
 use holecast::status::RowStatus;
 use holecast::units;
 use holecast::validity::{self, Warning, WarningKind};
 use holecast::workload::Workload;
 
 use super::args::{
-    GridArgs, HoleExpansionArg, HoleTimesArg, HolesArgs, LaserArgs, MethodArg, ModelArgs,
-    MomentumArg, OrbitsArgs, SpectrumArgs, StructureArg, SumArg, TargetArgs,
+    GridArgs, GroupDelaysArg, HoleExpansionArg, HoleTimesArg, HolesArgs, LaserArgs, MethodArg,
+    ModelArgs, MomentumArg, OrbitsArgs, SpectrumArgs, StructureArg, SumArg, TargetArgs,
 };
 use super::describe::{ChannelSummary, metadata, reference};
+use super::figures::{RunDescription, context};
 use super::limits::{Limits, hint};
-use super::output::{Written, write_atomic, write_set};
+use super::output::{Producer, Written, write_atomic, write_set, write_stdout};
 use super::progress::Progress;
-use super::settings::{self, LoadedTarget};
+use super::provenance::provenance;
+use super::settings::{self, InputFile, LoadedTarget};
 use super::warnings::Warnings;
 
 /// Options that apply to every command.
@@ -54,6 +59,8 @@ pub struct Loaded {
     pub target: LoadedTarget,
     /// The laser as given (after the command-line overrides).
     pub laser: LaserSpec,
+    /// The laser file's record (None for a laser from the command line).
+    pub laser_input: Option<InputFile>,
     /// The field.
     pub field: Field,
     /// Trajectory-stage settings (returns, work limits).
@@ -77,7 +84,7 @@ pub fn load(
     global: &Global,
 ) -> Result<Loaded> {
     let target = settings::target(target)?;
-    let (spec, field) = settings::laser(laser)?;
+    let (spec, field, laser_input) = settings::laser(laser)?;
     validity::check_representable(&field, &validity::channels_of(&target.target))?;
     let mut orbit = OrbitSettings::default();
     orbit.discovery.max_returns = check_returns(returns)?;
@@ -85,6 +92,7 @@ pub fn load(
     Ok(Loaded {
         target,
         laser: spec,
+        laser_input,
         field,
         orbit,
     })
@@ -174,17 +182,17 @@ fn all_cutoffs(summaries: &[ChannelSummary<'_>]) -> Vec<Cutoffs> {
     summaries.iter().filter_map(|s| s.cutoffs).collect()
 }
 
-/// Counts of a text column of a table.
-fn counts(table: &report::Table, column: &str) -> BTreeMap<String, usize> {
-    let mut out = BTreeMap::new();
-    if let Some(i) = table.columns.iter().position(|c| c == column) {
-        for r in &table.rows {
-            if let Cell::Text(t) = &r[i] {
-                *out.entry(t.clone()).or_insert(0) += 1;
-            }
-        }
+/// Counts of a text column over the rows (a pass that builds each row and keeps none).
+fn counts(rows: &dyn RowSource, column: &str) -> Result<BTreeMap<String, usize>> {
+    report::count_text(rows, column).map_err(|e| anyhow!(e))
+}
+
+/// Writes a file or standard output (`None`), streamed.
+fn write_out(out: Option<&std::path::Path>, produce: Producer<'_>) -> Result<()> {
+    match out {
+        Some(path) => write_atomic(path, produce),
+        None => write_stdout(produce),
     }
-    out
 }
 
 fn count_text(c: &BTreeMap<String, usize>) -> String {
@@ -200,20 +208,21 @@ pub fn orbits(args: &OrbitsArgs, global: &Global) -> Result<()> {
     let mut warnings = Warnings::default();
     let summaries = summarise(&loaded, global, true, &mut warnings)?;
     warnings.extend(field_warnings(&loaded));
-    let r = &summaries[reference(&summaries)];
     let field = &loaded.field;
-    let energies = settings::energies(
+    let grid = settings::energies(
         &args.grid,
         field,
-        r.channel.ip,
+        &loaded.laser,
+        &loaded.target.target,
         &all_cutoffs(&summaries),
-        &global.limits.orbits,
+        &loaded.orbit,
     )?;
+    let energies = &grid.energies;
     let channels = validity::channels_of(&loaded.target.target);
-    warnings.extend(validity::grid_warnings(field, &channels, &energies));
+    warnings.extend(validity::grid_warnings(field, &channels, energies));
     let settings = MultichannelSettings {
         orbits: loaded.orbit,
-        group_delay_step: None,
+        group_delays: GroupDelays::Skip,
         ..MultichannelSettings::default()
     };
     let t = &loaded.target.target;
@@ -221,7 +230,7 @@ pub fn orbits(args: &OrbitsArgs, global: &Global) -> Result<()> {
         "solving quantum orbits at {} energies",
         energies.len()
     ));
-    let stage = trajectory_stage(field, t, &energies, &settings);
+    let stage = trajectory_stage(field, t, energies, &settings);
     spinner.finish_and_clear();
     let stage = stage?;
     let tables: Vec<LabelledTable<'_>> = stage
@@ -233,9 +242,14 @@ pub fn orbits(args: &OrbitsArgs, global: &Global) -> Result<()> {
             table: &p.table,
         })
         .collect();
-    let rows = report::orbits::rows(&tables, field.omega(), args.include_excluded)
-        .map_err(|e| anyhow!(e))?;
-    let status = counts(&rows, "status");
+    let rows = OrbitRows {
+        tables: &tables,
+        omega: field.omega(),
+        grid: Some(&grid.lattice),
+        include_excluded: args.include_excluded,
+    };
+    let status = rows.status_counts();
+    let row_count: usize = status.values().sum();
     let failed: usize = status
         .iter()
         .filter(|(k, _)| k.starts_with("failed"))
@@ -258,88 +272,102 @@ pub fn orbits(args: &OrbitsArgs, global: &Global) -> Result<()> {
             "look at the validity warnings; a finer --orders step helps the continuation",
         );
     }
-    let text = match args.format {
+    let produce: Producer<'_> = match args.format {
         super::args::Format::Json => {
             let mut meta = metadata("orbits", &loaded.target, &loaded.laser, field, &summaries);
+            meta.insert(
+                "provenance".into(),
+                provenance(
+                    &loaded,
+                    Some(&grid.lattice),
+                    json!({
+                        "method": "saddle",
+                        "method_note": "quantum orbits only: the saddle points (complex ionization and return times) of each channel pair, found by Newton's method with continuation along the photon energy; no dipole is computed",
+                        "returns": loaded.orbit.discovery.max_returns,
+                    }),
+                ),
+            );
             meta.insert("warnings".into(), warnings.json());
             meta.insert(
                 "summary".into(),
-                json!({"rows": rows.rows.len(), "status": status}),
+                json!({"rows": row_count, "status": status}),
             );
-            report::json::document(meta, "orbits", &rows)
+            Box::new(move |w| report::json::write(&meta, "orbits", &rows, w).map(|_| ()))
         }
-        super::args::Format::Csv => report::csv::document(&rows),
-        super::args::Format::Table => orbit_text(&rows),
+        super::args::Format::Csv => Box::new(|w| report::csv::write(&rows, w).map(|_| ())),
+        super::args::Format::Table => Box::new(|w| orbit_text(&rows, w)),
     };
-    match &args.out {
-        Some(path) => write_atomic(path, text.as_bytes())?,
-        None => print!("{text}"),
-    }
+    write_out(args.out.as_deref(), produce)?;
     warnings.print();
     Ok(())
 }
 
-/// Readable text of the orbit rows.
-fn orbit_text(rows: &report::Table) -> String {
-    let col = |name: &str| rows.columns.iter().position(|c| c == name);
-    let pick = [
-        "ionized_channel",
-        "recombined_channel",
-        "order",
-        "family",
-        "half_cycle",
-        "t_ion_fs",
-        "t_ret_fs",
-        "action",
-        "converged",
-        "status",
-    ];
-    let idx: Vec<Option<usize>> = pick.iter().map(|n| col(n)).collect();
-    let mut out = format!(
-        "{:>6} {:>8} {:<16} {:>4} {:>26} {:>26} {:>28} {:>5}  {}\n",
+/// Readable text of the orbit rows, streamed.
+fn orbit_text(rows: &dyn RowSource, w: &mut dyn std::io::Write) -> std::io::Result<()> {
+    let header = format!(
+        "{:>6} {:>8} {:<16} {:>4} {:>26} {:>26} {:>28} {:>5}  {}",
         "pair", "order", "family", "hc", "t_ion (fs)", "t_ret (fs)", "action Φ", "conv", "status"
     );
-    for r in &rows.rows {
-        let cell = |i: usize| idx[i].map(|j| &r[j]);
-        let num = |c: Option<&Cell>| match c {
-            Some(Cell::Real(Some(x))) => format!("{x:.2}"),
-            Some(Cell::Int(i)) => i.to_string(),
-            Some(Cell::Text(t)) => t.clone(),
-            Some(Cell::Bool(b)) => {
-                if *b {
-                    "yes".into()
-                } else {
-                    "NO".into()
-                }
+    writeln!(w, "{header}")?;
+    let num = |c: Option<&Cell>| match c {
+        Some(Cell::Real(Some(x))) => format!("{x:.2}"),
+        Some(Cell::Exact(d)) => d.to_string(),
+        Some(Cell::Int(i)) => i.to_string(),
+        Some(Cell::Text(t)) => t.clone(),
+        Some(Cell::Bool(b)) => {
+            if *b {
+                "yes".into()
+            } else {
+                "NO".into()
             }
-            Some(Cell::Complex(Some(z))) => format!("{:+.5} {:+.5}i", z.re, z.im),
-            _ => "-".into(),
-        };
-        let pair = format!("{}→{}", num(cell(0)), num(cell(1)));
-        out.push_str(&format!(
-            "{:>6} {:>8} {:<16} {:>4} {:>26} {:>26} {:>28} {:>5}  {}\n",
+        }
+        _ => "-".into(),
+    };
+    let complex = |r: &report::Row, name: &str| match (
+        r.get(&format!("{name}_re")),
+        r.get(&format!("{name}_im")),
+    ) {
+        (Some(Cell::Real(Some(re))), Some(Cell::Real(Some(im)))) => {
+            format!("{re:+.5} {im:+.5}i")
+        }
+        _ => "-".into(),
+    };
+    report::each_row(rows, |_, r| {
+        let pair = format!(
+            "{}→{}",
+            num(r.get("ionized_channel")),
+            num(r.get("recombined_channel"))
+        );
+        writeln!(
+            w,
+            "{:>6} {:>8} {:<16} {:>4} {:>26} {:>26} {:>28} {:>5}  {}",
             pair,
-            num(cell(2)),
-            num(cell(3)),
-            num(cell(4)),
-            num(cell(5)),
-            num(cell(6)),
-            num(cell(7)),
-            num(cell(8)),
-            num(cell(9))
-        ));
-    }
-    out
+            num(r.get("order")),
+            num(r.get("family")),
+            num(r.get("half_cycle")),
+            complex(r, "t_ion_fs"),
+            complex(r, "t_ret_fs"),
+            complex(r, "action"),
+            num(r.get("converged")),
+            num(r.get("status"))
+        )
+    })
+    .map(|_| ())
 }
 
 /// Everything a spectrum or holes run produced.
 struct Run {
     target: LoadedTarget,
+    /// The multichannel settings of the run (saddle method).
+    settings: MultichannelSettings,
     meta: Map<String, Value>,
+    laser: LaserSpec,
+    orbit: OrbitSettings,
     field: Field,
     summaries_cutoff: Cutoffs,
     spectrum: MultichannelSpectrum,
     energies: Vec<f64>,
+    grid: Lattice,
     warnings: Warnings,
 }
 
@@ -393,7 +421,8 @@ fn quadrature_settings(
     excursion: Option<f64>,
     fall: Option<f64>,
     momentum: Option<MomentumArg>,
-) -> Option<holecast::quadrature::QuadratureSettings> {
+    group_delays: Option<GroupDelaysArg>,
+) -> Result<Option<holecast::quadrature::QuadratureSettings>> {
     let mut q = holecast::quadrature::QuadratureSettings {
         momentum: match momentum.unwrap_or(MomentumArg::Exact) {
             MomentumArg::Exact => holecast::quadrature::MomentumIntegral::Exact,
@@ -407,7 +436,25 @@ fn quadrature_settings(
     if let Some(f) = fall {
         q.window.fall_cycles = f;
     }
-    (method == MethodArg::Quadrature).then_some(q)
+    match group_delays {
+        None | Some(GroupDelaysArg::Difference) => {}
+        Some(GroupDelaysArg::Skip) => q.group_delay_step = None,
+        Some(GroupDelaysArg::Tangent) if method == MethodArg::Quadrature => bail!(
+            "--group-delays tangent needs saddle points; the quadrature has none: use \
+             --group-delays difference (its default) or skip"
+        ),
+        Some(GroupDelaysArg::Tangent) => {}
+    }
+    Ok((method == MethodArg::Quadrature).then_some(q))
+}
+
+/// The saddle method's group delays chosen on the command line.
+fn group_delays(arg: Option<GroupDelaysArg>) -> GroupDelays {
+    match arg {
+        None | Some(GroupDelaysArg::Tangent) => GroupDelays::Tangent,
+        Some(GroupDelaysArg::Difference) => GroupDelays::Difference { step: 1e-3 },
+        Some(GroupDelaysArg::Skip) => GroupDelays::Skip,
+    }
 }
 
 /// The structure placement chosen on the command line.
@@ -430,6 +477,7 @@ fn run(
     sum: Option<SumArg>,
     global: &Global,
     quadrature: Option<holecast::quadrature::QuadratureSettings>,
+    delays: GroupDelays,
 ) -> Result<Run> {
     let loaded = load(target, laser, grid.returns, global)?;
     let mut warnings = Warnings::default();
@@ -437,12 +485,13 @@ fn run(
     warnings.extend(field_warnings(&loaded));
     let r = &summaries[reference(&summaries)];
     let field = &loaded.field;
-    let energies = settings::energies(
+    let settings::Grid { energies, lattice } = settings::energies(
         grid,
         field,
-        r.channel.ip,
+        &loaded.laser,
+        &loaded.target.target,
         &all_cutoffs(&summaries),
-        &global.limits.orbits,
+        &loaded.orbit,
     )?;
     let t = &loaded.target.target;
     warnings.extend(validity::grid_warnings(
@@ -470,6 +519,7 @@ fn run(
             None | Some(HoleExpansionArg::NextOrder) => HoleExpansion::NextOrder,
             Some(HoleExpansionArg::Leading) => HoleExpansion::Leading,
         },
+        group_delays: delays,
         ..defaults
     };
     if let (Some(q), holecast::field::TimeStructure::Pulse { start, end }) =
@@ -509,7 +559,17 @@ fn run(
             let stage = trajectory_stage(field, t, &energies, &settings);
             spinner.finish_and_clear();
             let stage = stage?;
-            assemble(field, t, &stage, true, &report)?
+            let mut s = assemble(field, t, &stage, true, &report)?;
+            if !s.unresolved_group_delays.is_empty() {
+                let spinner = progress.spinner(format!(
+                    "group delays by difference at {} energies the grid does not resolve",
+                    s.unresolved_group_delays.len()
+                ));
+                let refined = refine_group_delays(field, t, &settings, true, &mut s);
+                spinner.finish_and_clear();
+                refined?;
+            }
+            s
         }
         Some(q) => {
             bar.set_message("quadrature");
@@ -532,6 +592,12 @@ fn run(
                 HoleContour::Real => "hole propagator U_I(Re t_r, Re t_i): hole frozen under the barrier (shortcut)",
             },
             "hole_expansion": settings.hole_expansion,
+            "group_delays": settings.group_delays,
+            "group_delays_note": match settings.group_delays {
+                GroupDelays::Tangent => "dφ/dΩ = Im d ln D/dΩ with each saddle's phase slope ∂Φ/∂Ω = t_r exact and the slope of the remaining prefactors (spreading, Airy, structure, hole) by a three-point difference across the energy grid; where the grid does not resolve the prefactors (|Δ ln| > 0.2 between neighbours), and on grids coarser than 0.25 harmonic orders throughout, by central difference over Ω ± 0.001ω with every saddle solved again",
+                GroupDelays::Difference { .. } => "dφ/dΩ by central difference over Ω ± 0.001ω, every saddle solved again at both ends",
+                GroupDelays::Skip => "not computed",
+            },
             "hole_expansion_note": match (settings.hole_contour, settings.hole_expansion) {
                 (HoleContour::Complex, HoleExpansion::NextOrder) => "U_I with its next-order saddle-point terms (curvature across the saddle, slope against the skew of the phase, the spreading factor and the structure prefactor); near a caustic (|zeta| < 1) the next-order/leading ratio of each family is bridged in photon energy from outside",
                 _ => "U_I at the saddle only (leading order)",
@@ -557,7 +623,10 @@ fn run(
             v
         }
     };
-    meta.insert("approximations".into(), approximations);
+    meta.insert(
+        "provenance".into(),
+        provenance(&loaded, Some(&lattice), approximations),
+    );
     meta.insert("orientations_summed".into(), json!(spectrum.orientations));
     if let Some(w) = workload {
         meta.insert(
@@ -574,11 +643,15 @@ fn run(
     }
     Ok(Run {
         target: loaded.target,
+        settings,
         meta,
+        laser: loaded.laser,
+        orbit: loaded.orbit,
         field: loaded.field,
         summaries_cutoff: cutoff,
         spectrum,
         energies,
+        grid: lattice,
         warnings,
     })
 }
@@ -598,9 +671,18 @@ fn failure_reasons(s: &MultichannelSpectrum) -> BTreeMap<String, usize> {
 
 /// The run summary, from the rows' `status` column (the one definition of a complete row) and
 /// the families' statuses; warnings for incomplete, failed and non-finite rows.
-fn summarise_rows(run: &mut Run, rows: &report::Table) -> Value {
-    let status = counts(rows, "status");
-    let reasons = failure_reasons(&run.spectrum);
+fn summarise_rows(
+    spectrum: &MultichannelSpectrum,
+    grid: &Lattice,
+    warnings: &mut Warnings,
+) -> Result<Value> {
+    let rows = SpectrumRows {
+        spectrum,
+        grid: Some(grid),
+    };
+    let status = counts(&rows, "status")?;
+    let row_count: usize = status.values().sum();
+    let reasons = failure_reasons(spectrum);
     let get = |k: &str| status.get(k).copied().unwrap_or(0);
     let (partial, failed) = (
         get(RowStatus::Partial.code()),
@@ -609,7 +691,7 @@ fn summarise_rows(run: &mut Run, rows: &report::Table) -> Value {
     let non_finite = get(report::spectrum::NON_FINITE);
     let complete = get(RowStatus::Complete.code());
     if failed > 0 && partial == 0 && complete == 0 {
-        run.warnings.push(
+        warnings.push(
             WarningKind::AllSaddlesFailed,
             format!(
                 "every orbit family that should contribute failed at every energy: the files \
@@ -619,7 +701,7 @@ fn summarise_rows(run: &mut Run, rows: &report::Table) -> Value {
             "read the validity warnings; holecast orbits lists each saddle with its reason",
         );
     } else if partial + failed > 0 {
-        run.warnings.push(
+        warnings.push(
             WarningKind::IncompletePoints,
             format!(
                 "{} rows are incomplete ({partial} partial, {failed} failed; failed family \
@@ -631,7 +713,7 @@ fn summarise_rows(run: &mut Run, rows: &report::Table) -> Value {
         );
     }
     if non_finite > 0 {
-        run.warnings.push(
+        warnings.push(
             WarningKind::NonFiniteValues,
             format!(
                 "{non_finite} rows have non-finite values (status non-finite; the columns are \
@@ -640,14 +722,18 @@ fn summarise_rows(run: &mut Run, rows: &report::Table) -> Value {
             "this is a defect of holecast: please report the command line",
         );
     }
-    json!({
-        "rows": rows.rows.len(),
+    Ok(json!({
+        "rows": row_count,
         "status": status,
         "failed_family_points": reasons,
-    })
+    }))
 }
 
-fn hole_files(run: &Run, rows: &report::Table, summary: &Value) -> Vec<(String, Vec<u8>)> {
+fn hole_files<'a>(
+    run: &Run,
+    rows: &'a HoleRows<'a>,
+    summary: &Value,
+) -> Vec<(String, Producer<'a>)> {
     let mut meta = run.meta.clone();
     meta.insert("warnings".into(), run.warnings.json());
     meta.insert("summary".into(), summary.clone());
@@ -661,23 +747,37 @@ fn hole_files(run: &Run, rows: &report::Table, summary: &Value) -> Vec<(String, 
             "status": "complete where the hole was decoded, else the reference family's status (below-threshold, failed-…): why the row's numbers are null",
         }),
     );
-    vec![
-        (
-            "holes.json".into(),
-            report::json::document(meta, "points", rows).into_bytes(),
-        ),
-        ("holes.csv".into(), report::csv::document(rows).into_bytes()),
-    ]
+    let json: Producer<'a> =
+        Box::new(move |w| report::json::write(&meta, "points", rows, w).map(|_| ()));
+    let csv: Producer<'a> = Box::new(move |w| report::csv::write(rows, w).map(|_| ()));
+    vec![("holes.json".into(), json), ("holes.csv".into(), csv)]
+}
+
+/// The figure context of a run (title block, axes, cutoffs).
+fn figure_context(run: &Run, what: &str) -> report::svg::FigureContext {
+    context(
+        &RunDescription {
+            target: &run.target.target,
+            laser: &run.laser,
+            field: &run.field,
+            orbit: &run.orbit,
+            cutoff: &run.summaries_cutoff,
+            reference: run.spectrum.reference,
+            approximations: run
+                .meta
+                .get("provenance")
+                .and_then(|p| p.get("approximations"))
+                .unwrap_or(&Value::Null),
+        },
+        what,
+    )
 }
 
 /// The hole figure, or a warning if it cannot be drawn.
-fn hole_svg(run: &mut Run) -> Option<(String, Vec<u8>)> {
-    let title = format!(
-        "{} — hole populations vs return delay",
-        run.target.target.name
-    );
-    match report::svg::hole_figure(&run.spectrum, &title) {
-        Ok(svg) => Some(("holes.svg".into(), svg.into_bytes())),
+fn hole_svg<'a>(run: &mut Run) -> Option<(String, Producer<'a>)> {
+    let ctx = figure_context(run, "hole density decoded by each harmonic");
+    match report::svg::hole_figure(&run.spectrum, &ctx) {
+        Ok(svg) => Some(("holes.svg".into(), bytes(svg))),
         Err(e) => {
             run.warnings.push(
                 WarningKind::PlotNotDrawn,
@@ -687,6 +787,11 @@ fn hole_svg(run: &mut Run) -> Option<(String, Vec<u8>)> {
             None
         }
     }
+}
+
+/// A producer that writes text already built (the SVG figures, which are small).
+fn bytes<'a>(text: String) -> Producer<'a> {
+    Box::new(move |w| w.write_all(text.as_bytes()))
 }
 
 fn report_written(written: &Written, quiet: bool) {
@@ -742,12 +847,25 @@ const HOLES_NAMES: [&str; 3] = ["holes.json", "holes.csv", "holes.svg"];
 /// `holecast spectrum`.
 pub fn spectrum(args: &SpectrumArgs, global: &Global) -> Result<()> {
     check_method_options(args)?;
+    // The detection layer's setup is read and checked before any work.
+    let detection = if args.detection.any() {
+        if args.method == MethodArg::Quadrature {
+            bail!(
+                "--setup and the detection flags use the saddle method (one trajectory stage per \
+                 intensity sample); drop --method quadrature"
+            );
+        }
+        Some(super::detected::setup(&args.detection)?)
+    } else {
+        None
+    };
     let quadrature = quadrature_settings(
         args.method,
         args.excursion_cycles,
         args.window_fall_cycles,
         args.momentum_integral,
-    );
+        args.group_delays,
+    )?;
     let mut run = run(
         "spectrum",
         &args.target,
@@ -757,33 +875,12 @@ pub fn spectrum(args: &SpectrumArgs, global: &Global) -> Result<()> {
         args.sum,
         global,
         quadrature,
+        group_delays(args.group_delays),
     )?;
-    let rows = report::spectrum::rows(&run.spectrum).map_err(|e| anyhow!(e))?;
-    let summary = summarise_rows(&mut run, &rows);
-    let omega = run.field.omega();
-    let mut markers = vec![Marker {
-        label: "classical cutoff".into(),
-        order: run.summaries_cutoff.classical / omega,
-    }];
-    if let Some(q) = run.summaries_cutoff.quantum {
-        markers.push(Marker {
-            label: "quantum cutoff".into(),
-            order: q / omega,
-        });
-    }
-    let title = format!(
-        "{} — {:.0} nm, Up = {:.2} eV ({} sum)",
-        run.target.target.name,
-        units::omega_to_wavelength_nm(omega),
-        units::au_to_ev(run.field.ponderomotive_energy()),
-        match (args.method, args.sum) {
-            (MethodArg::Quadrature, _) => "quadrature, no",
-            (MethodArg::Saddle, None | Some(SumArg::Uniform)) => "uniform",
-            (MethodArg::Saddle, Some(SumArg::Plain)) => "plain",
-        }
-    );
-    let svg = match report::svg::spectrum_figure(&run.spectrum, &markers, &title) {
-        Ok(svg) => Some(("spectrum.svg".to_string(), svg.into_bytes())),
+    let summary = summarise_rows(&run.spectrum, &run.grid, &mut run.warnings)?;
+    let ctx = figure_context(&run, "harmonic spectrum");
+    let svg = match report::svg::spectrum_figure(&run.spectrum, &ctx) {
+        Ok(svg) => Some(("spectrum.svg".to_string(), bytes(svg))),
         Err(e) => {
             run.warnings.push(
                 WarningKind::PlotNotDrawn,
@@ -795,12 +892,16 @@ pub fn spectrum(args: &SpectrumArgs, global: &Global) -> Result<()> {
     };
     // The quadrature has no saddles, hence no hole density per orbit.
     let with_holes = run.target.target.channels.len() > 1 && args.method == MethodArg::Saddle;
-    let (hole_rows, hole_svg) = if with_holes {
-        let rows = report::spectrum::hole_rows(&run.spectrum).map_err(|e| anyhow!(e))?;
-        (Some(rows), hole_svg(&mut run))
-    } else {
-        (None, None)
+    let hole_svg = if with_holes { hole_svg(&mut run) } else { None };
+    let run = run;
+    let rows = SpectrumRows {
+        spectrum: &run.spectrum,
+        grid: Some(&run.grid),
     };
+    let hole_rows = with_holes.then_some(HoleRows {
+        spectrum: &run.spectrum,
+        grid: Some(&run.grid),
+    });
     let mut meta = run.meta.clone();
     meta.insert("warnings".into(), run.warnings.json());
     meta.insert("summary".into(), summary.clone());
@@ -810,7 +911,7 @@ pub fn spectrum(args: &SpectrumArgs, global: &Global) -> Result<()> {
             "intensity": "|D|^2 = sum over x,y,z of |D_k|^2, D(Ω) = ∫ <r>(t) e^{iΩt} dt over one period (periodic field) or the pulse, coherent over orientations, a.u.",
             "power": "Ω^4 |D|^2, proportional to the emitted power (dipole form), arbitrary units",
             "phase_rad": "arg of the dipole component along the driving polarization axis; null where the emission is negligible",
-            "group_delay_fs": "dφ/dΩ by central difference over Ω ± 0.001ω; for a periodic field only per family (*_group_delay_fs of a family is one half cycle's emission time; a sum over both half cycles has none: its dφ/dΩ is a half cycle's plus T/4), for pulses also for pairs and the total",
+            "group_delay_fs": "dφ/dΩ (how: approximations.group_delays); for a periodic field only per family (*_group_delay_fs of a family is one half cycle's emission time; a sum over both half cycles has none: its dφ/dΩ is a half cycle's plus T/4), for pulses also for pairs and the total",
             "complete": "true when the row's status is complete",
             "status": "complete (every family that should contribute converged), partial (some failed), failed (all that should contribute failed), below-threshold (below every recombining channel's Ip: no harmonic in this model), no-orbits, non-finite (see non_finite_columns)",
             "non_finite_columns": "columns whose computed value was not finite (written as null)",
@@ -824,22 +925,65 @@ pub fn spectrum(args: &SpectrumArgs, global: &Global) -> Result<()> {
             "*_status": "summed, excluded-<why>, below-threshold, no-classical-return, returns-after-pulse, beyond-half-cycle-cutoff, failed-<why>: why a family's columns are null",
         }),
     );
+    let rows = &rows;
+    let json: Producer<'_> =
+        Box::new(move |w| report::json::write(&meta, "points", rows, w).map(|_| ()));
+    let csv: Producer<'_> = Box::new(move |w| report::csv::write(rows, w).map(|_| ()));
     let mut files = vec![
-        (
-            "spectrum.json".to_string(),
-            report::json::document(meta, "points", &rows).into_bytes(),
-        ),
-        (
-            "spectrum.csv".to_string(),
-            report::csv::document(&rows).into_bytes(),
-        ),
+        ("spectrum.json".to_string(), json),
+        ("spectrum.csv".to_string(), csv),
     ];
     files.extend(svg);
     if let Some(rows) = &hole_rows {
         files.extend(hole_files(&run, rows, &summary));
         files.extend(hole_svg);
     }
-    let written = write_set(&args.out, "spectrum", &files, &SPECTRUM_NAMES)
+    if let Some((spec, setup)) = &detection {
+        let progress = global.progress();
+        let bar = progress.bar("detection: single-molecule runs", "intensity samples");
+        let report = |done: usize, total: usize| {
+            bar.set_length(total as u64);
+            bar.set_position(done as u64);
+        };
+        let settings = MultichannelSettings {
+            group_delays: GroupDelays::Skip,
+            ..run.settings
+        };
+        let outcome = holecast::detection::detect(
+            &run.field,
+            &run.target.target,
+            &run.energies,
+            &settings,
+            setup,
+            &report,
+        );
+        bar.finish_and_clear();
+        let outcome = outcome.context("detection layer")?;
+        // The layer's own notes (their codes are in detected.json's "notes").
+        for n in &outcome.notes {
+            eprintln!(
+                "warning [detection-{}]: {} (what to do: {})",
+                n.code, n.message, n.advice
+            );
+        }
+        let mut meta = run.meta.clone();
+        meta.insert("warnings".into(), run.warnings.json());
+        let detected = super::detected::files(
+            &outcome,
+            spec,
+            args.detection.setup.as_deref(),
+            &meta,
+            &run.spectrum,
+            &format!("{} — single molecule and detected", run.target.target.name),
+        )?;
+        for (name, bytes) in detected {
+            let produce: Producer<'_> = Box::new(move |w| w.write_all(&bytes));
+            files.push((name, produce));
+        }
+    }
+    let mut names: Vec<&str> = SPECTRUM_NAMES.to_vec();
+    names.extend(super::detected::NAMES);
+    let written = write_set(&args.out, "spectrum", files, &names)
         .with_context(|| format!("writing the outputs into {}", args.out.display()))?;
     report_written(&written, global.quiet);
     run.warnings.print();
@@ -858,14 +1002,21 @@ pub fn holes(args: &HolesArgs, global: &Global) -> Result<()> {
         None,
         global,
         None,
+        // The same method as `spectrum`'s default, so that both write the same hole table (on
+        // a grid coarser than 0.25 orders the difference's triples Ω ± δ change the energies
+        // between which the next-order hole terms are bridged near a caustic).
+        GroupDelays::Tangent,
     )?;
-    let spectrum_rows = report::spectrum::rows(&run.spectrum).map_err(|e| anyhow!(e))?;
-    let summary = summarise_rows(&mut run, &spectrum_rows);
-    let rows = report::spectrum::hole_rows(&run.spectrum).map_err(|e| anyhow!(e))?;
+    let summary = summarise_rows(&run.spectrum, &run.grid, &mut run.warnings)?;
     let svg = hole_svg(&mut run);
+    let run = run;
+    let rows = HoleRows {
+        spectrum: &run.spectrum,
+        grid: Some(&run.grid),
+    };
     let mut files = hole_files(&run, &rows, &summary);
     files.extend(svg);
-    let written = write_set(&args.out, "holes", &files, &HOLES_NAMES)
+    let written = write_set(&args.out, "holes", files, &HOLES_NAMES)
         .with_context(|| format!("writing the outputs into {}", args.out.display()))?;
     report_written(&written, global.quiet);
     run.warnings.print();

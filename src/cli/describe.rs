@@ -58,7 +58,7 @@ pub fn cutoff_json(c: Option<&Cutoffs>, omega: f64) -> Value {
         "quantum_ev": c.quantum.map(units::au_to_ev),
         "quantum_order": c.quantum.map(|q| q / omega),
         "quantum_imaginary_ev": c.coalescence.map(|z| units::au_to_ev(z.omega.im)),
-        "lewenstein_formula_ev": ev(c.lewenstein),
+        "lewenstein_formula_ev": c.lewenstein.map(units::au_to_ev),
         "strongest_half_cycle": c.strongest_half_cycle,
     })
 }

@@ -258,7 +258,7 @@ pub fn fit(args: &FitArgs, global: &Global) -> Result<()> {
     write_set(
         &args.out,
         "fit",
-        &files,
+        super::output::in_memory(files),
         &["fit.json", "fit.csv", "fit.svg", "fitted-target.json"],
     )
     .with_context(|| format!("writing the outputs into {}", args.out.display()))?;
@@ -542,10 +542,10 @@ fn expected(
     write_set(
         &args.out,
         "fit-expected",
-        &[(
+        super::output::in_memory(vec![(
             "expected.json".to_string(),
             serde_json::to_vec_pretty(&doc)?,
-        )],
+        )]),
         &["expected.json"],
     )?;
     if !global.quiet {
@@ -656,7 +656,10 @@ pub fn synthetic(args: &SyntheticArgs, global: &Global) -> Result<()> {
             std::fs::create_dir_all(dir)
                 .with_context(|| format!("cannot create {}", dir.display()))?;
         }
-        super::output::write_atomic(path, text.as_bytes())?;
+        super::output::write_atomic(
+            path,
+            super::output::bytes_producer(text.clone().into_bytes()),
+        )?;
         if !global.quiet {
             eprintln!("wrote {}", path.display());
         }

@@ -1,8 +1,8 @@
 //! Output files: atomic, one run per folder, a manifest, no leftovers.
 //!
-//! - Every file is written to a hidden temporary file `.NAME.tmp-PID` in its folder and renamed
-//!   into place only when all files of the command are complete, so a failure leaves nothing
-//!   half-written. Temporary files are registered with [`super::interrupt`], which removes them
+//! - Every file is streamed (through a buffer, row by row: no document in memory) into a
+//!   hidden temporary file `.NAME.tmp-PID` in its folder, synced, and renamed into place only
+//!   when all files of the command are complete, so a failure leaves nothing half-written. Temporary files are registered with [`super::interrupt`], which removes them
 //!   on SIGINT/SIGTERM; those of a killed run (`kill -9`, power loss) are removed by the next
 //!   run that writes into the folder (the process PID is gone).
 //! - A command that writes a folder also writes `manifest-COMMAND.json`, the list of the files
@@ -12,7 +12,7 @@
 //!   command's set removes that whole set. Folders written before manifests existed: the
 //!   command's own file names that the new run does not write are removed.
 
-use std::io::Write;
+use std::io::{BufWriter, Write};
 use std::path::{Path, PathBuf};
 
 use anyhow::{Context, Result};
@@ -77,11 +77,44 @@ pub fn remove_leftovers(dir: &Path) -> Vec<String> {
     removed
 }
 
-fn write_temporary(tmp: &Path, bytes: &[u8]) -> std::io::Result<()> {
+/// Writes the contents of one output file into a writer (streamed: no document in memory).
+pub type Producer<'a> = Box<dyn FnOnce(&mut dyn Write) -> std::io::Result<()> + 'a>;
+
+/// A writer that counts the bytes written through it.
+struct Counting<W> {
+    inner: W,
+    bytes: u64,
+}
+
+impl<W: Write> Write for Counting<W> {
+    fn write(&mut self, buf: &[u8]) -> std::io::Result<usize> {
+        let n = self.inner.write(buf)?;
+        self.bytes += n as u64;
+        Ok(n)
+    }
+
+    fn flush(&mut self) -> std::io::Result<()> {
+        self.inner.flush()
+    }
+}
+
+/// Size of the write buffer of an output file.
+const BUFFER_BYTES: usize = 1 << 18;
+
+/// Streams `produce` into the temporary file `tmp` through a buffer, then syncs it to disk;
+/// returns the number of bytes. On error the temporary file is removed.
+fn write_temporary(tmp: &Path, produce: Producer<'_>) -> std::io::Result<u64> {
     interrupt::register(&mut interrupt::lock(), tmp);
-    let result = std::fs::File::create(tmp).and_then(|mut f| {
-        f.write_all(bytes)?;
-        f.sync_all()
+    let result = std::fs::File::create(tmp).and_then(|f| {
+        let mut w = Counting {
+            inner: BufWriter::with_capacity(BUFFER_BYTES, f),
+            bytes: 0,
+        };
+        produce(&mut w)?;
+        let bytes = w.bytes;
+        let f = w.inner.into_inner().map_err(|e| e.into_error())?;
+        f.sync_all()?;
+        Ok(bytes)
     });
     if result.is_err() {
         let _ = std::fs::remove_file(tmp);
@@ -90,9 +123,18 @@ fn write_temporary(tmp: &Path, bytes: &[u8]) -> std::io::Result<()> {
     result
 }
 
-/// Writes all `(path, contents)` pairs or none of them.
-pub fn write_all_atomic(files: &[(PathBuf, Vec<u8>)]) -> Result<()> {
+/// A last file written from the sizes of the others (the manifest).
+pub type Listing<'a> = (PathBuf, Box<dyn FnOnce(&[u64]) -> Result<String> + 'a>);
+
+/// Writes all `(path, producer)` files, and then `listing` from their sizes, or none of them:
+/// each is streamed into a temporary file in its folder, and all are renamed into place once
+/// every one is complete. Returns the size of each file.
+pub fn write_all_atomic(
+    files: Vec<(PathBuf, Producer<'_>)>,
+    listing: Option<Listing<'_>>,
+) -> Result<Vec<u64>> {
     let mut written: Vec<(PathBuf, PathBuf)> = Vec::new();
+    let mut sizes = Vec::with_capacity(files.len());
     let cleanup = |written: &[(PathBuf, PathBuf)]| {
         let mut registry = interrupt::lock();
         for (tmp, _) in written {
@@ -100,13 +142,29 @@ pub fn write_all_atomic(files: &[(PathBuf, Vec<u8>)]) -> Result<()> {
             interrupt::forget(&mut registry, tmp);
         }
     };
-    for (path, bytes) in files {
-        let tmp = temporary(path);
-        if let Err(e) = write_temporary(&tmp, bytes) {
-            cleanup(&written);
-            return Err(e).with_context(|| format!("cannot write {}", path.display()));
+    for (path, produce) in files {
+        let tmp = temporary(&path);
+        match write_temporary(&tmp, produce) {
+            Ok(n) => sizes.push(n),
+            Err(e) => {
+                cleanup(&written);
+                return Err(e).with_context(|| format!("cannot write {}", path.display()));
+            }
         }
-        written.push((tmp, path.clone()));
+        written.push((tmp, path));
+    }
+    if let Some((path, list)) = listing {
+        let tmp = temporary(&path);
+        let result = list(&sizes).and_then(|text| {
+            let produce: Producer<'_> = Box::new(move |w| w.write_all(text.as_bytes()));
+            write_temporary(&tmp, produce)
+                .with_context(|| format!("cannot write {}", path.display()))
+        });
+        if let Err(e) = result {
+            cleanup(&written);
+            return Err(e);
+        }
+        written.push((tmp, path));
     }
     // The rename phase holds the interrupt lock: an interrupt waits for it to finish.
     let mut registry = interrupt::lock();
@@ -118,11 +176,11 @@ pub fn write_all_atomic(files: &[(PathBuf, Vec<u8>)]) -> Result<()> {
         }
         interrupt::forget(&mut registry, tmp);
     }
-    Ok(())
+    Ok(sizes)
 }
 
 /// Writes one file atomically (its folder's leftovers of killed runs are removed first).
-pub fn write_atomic(path: &Path, bytes: &[u8]) -> Result<()> {
+pub fn write_atomic(path: &Path, produce: Producer<'_>) -> Result<()> {
     if let Some(dir) = path.parent() {
         remove_leftovers(if dir.as_os_str().is_empty() {
             Path::new(".")
@@ -130,7 +188,15 @@ pub fn write_atomic(path: &Path, bytes: &[u8]) -> Result<()> {
             dir
         });
     }
-    write_all_atomic(&[(path.to_path_buf(), bytes.to_vec())])
+    write_all_atomic(vec![(path.to_path_buf(), produce)], None).map(|_| ())
+}
+
+/// Streams `produce` to standard output through a buffer.
+pub fn write_stdout(produce: Producer<'_>) -> Result<()> {
+    let stdout = std::io::stdout();
+    let mut w = BufWriter::with_capacity(BUFFER_BYTES, stdout.lock());
+    produce(&mut w).context("cannot write to standard output")?;
+    w.flush().context("cannot write to standard output")
 }
 
 fn manifest_name(command: &str) -> String {
@@ -166,7 +232,7 @@ pub struct Written {
 pub fn write_set(
     dir: &Path,
     command: &str,
-    files: &[(String, Vec<u8>)],
+    files: Vec<(String, Producer<'_>)>,
     own_names: &[&str],
 ) -> Result<Written> {
     std::fs::create_dir_all(dir)
@@ -208,22 +274,34 @@ pub fn write_set(
                 .map(|n| n.to_string()),
         );
     }
-    let manifest = json!({
-        "holecast_version": env!("CARGO_PKG_VERSION"),
-        "command": command,
-        "files": files
-            .iter()
-            .map(|(n, b)| json!({"name": n, "bytes": b.len()}))
-            .collect::<Vec<_>>(),
-    });
-    let mut text = serde_json::to_string_pretty(&manifest)?;
-    text.push('\n');
-    let mut all: Vec<(PathBuf, Vec<u8>)> = files
-        .iter()
-        .map(|(n, b)| (dir.join(n), b.clone()))
-        .collect();
-    all.push((dir.join(manifest_name(command)), text.into_bytes()));
-    write_all_atomic(&all)?;
+    let paths: Vec<PathBuf> = files.iter().map(|(n, _)| dir.join(n)).collect();
+    let file_names: Vec<String> = files.iter().map(|(n, _)| n.clone()).collect();
+    let manifest_path = dir.join(manifest_name(command));
+    let list = |sizes: &[u64]| -> Result<String> {
+        let manifest = json!({
+            "holecast_version": env!("CARGO_PKG_VERSION"),
+            "command": command,
+            "files": file_names
+                .iter()
+                .zip(sizes)
+                .map(|(n, b)| json!({"name": n, "bytes": b}))
+                .collect::<Vec<_>>(),
+        });
+        let mut text = serde_json::to_string_pretty(&manifest)?;
+        text.push('\n');
+        Ok(text)
+    };
+    let listing: Listing<'_> = (manifest_path.clone(), Box::new(list));
+    write_all_atomic(
+        files
+            .into_iter()
+            .zip(&paths)
+            .map(|((_, produce), path)| (path.clone(), produce))
+            .collect(),
+        Some(listing),
+    )?;
+    let mut all = paths;
+    all.push(manifest_path);
     stale.sort();
     stale.dedup();
     for name in stale.into_iter().chain(old_manifests) {
@@ -233,9 +311,22 @@ pub fn write_set(
         }
     }
     Ok(Written {
-        files: all.into_iter().map(|(p, _)| p).collect(),
+        files: all,
         removed,
     })
+}
+
+/// Files built in memory (figures, small documents) as producers for [`write_set`].
+pub fn in_memory(files: Vec<(String, Vec<u8>)>) -> Vec<(String, Producer<'static>)> {
+    files
+        .into_iter()
+        .map(|(name, bytes)| (name, bytes_producer(bytes)))
+        .collect()
+}
+
+/// Bytes built in memory as a producer for [`write_atomic`].
+pub fn bytes_producer(bytes: Vec<u8>) -> Producer<'static> {
+    Box::new(move |w: &mut dyn Write| w.write_all(&bytes))
 }
 
 #[cfg(test)]

@@ -57,7 +57,7 @@ impl SingleMolecule {
     /// The default multichannel settings without group delays (a fit of yields needs none).
     pub fn new() -> Self {
         SingleMolecule::with_settings(MultichannelSettings {
-            group_delay_step: None,
+            group_delays: crate::multichannel::GroupDelays::Skip,
             ..MultichannelSettings::default()
         })
     }

@@ -84,6 +84,10 @@ pub struct MultichannelSpectrum {
     pub status: Vec<RowStatus>,
     /// Channel-pair contributions.
     pub pairs: Vec<PairSpectrum>,
+    /// Indices of the energies whose group delays from the saddles' own phase
+    /// ([`crate::spectrum::GroupDelays::Tangent`]) the grid did not resolve: their delays are
+    /// None until [`super::refine_group_delays`] recomputes them by difference.
+    pub unresolved_group_delays: Vec<usize>,
     /// Number of orientations summed.
     pub orientations: usize,
     /// Hole density matrices, one per family of the reference (lowest-Ip) channel.
@@ -244,6 +248,11 @@ impl Accumulator {
     }
 }
 
+/// A sum of family contributions whose modulus is below this fraction of the sum of their
+/// moduli cancels too strongly for the tangent group delay ([`crate::spectrum::GroupDelays`]):
+/// its delays are recomputed by difference.
+const CANCELLATION: f64 = 0.1;
+
 /// Classes computed together (their hole propagators and structured saddles are shared within
 /// a chunk; memory grows with the chunk).
 const CHUNK_CLASSES: usize = 32;
@@ -338,6 +347,8 @@ fn finish(plan: &Plan<'_>, mut acc: Accumulator, count: usize) -> Result<Multich
         field.structure(),
         crate::field::TimeStructure::Periodic { .. }
     );
+    let tangent = stage.group_delays == crate::spectrum::GroupDelays::Tangent;
+    // Difference: central differences over the Ω ± δ triples of the grid.
     let family_delay = |v: &[CVec3], k: usize| -> Option<f64> {
         let d = stage.delta?;
         let i = central(k);
@@ -349,8 +360,112 @@ fn finish(plan: &Plan<'_>, mut acc: Accumulator, count: usize) -> Result<Multich
             floor,
         )
     };
-    let delay =
-        |v: &[CVec3], k: usize| -> Option<f64> { if periodic { None } else { family_delay(v, k) } };
+    // Tangent: complex log-derivatives of every family's projected dipole
+    // (crate::spectrum::tangent_log_derivatives), `[pair][family][energy]`.
+    let slopes: Vec<Vec<Vec<crate::spectrum::LogDerivative>>> = if tangent {
+        stage
+            .pairs
+            .iter()
+            .enumerate()
+            .map(|(p, pair)| {
+                pair.table
+                    .families
+                    .iter()
+                    .enumerate()
+                    .map(|(f, family)| {
+                        let values: Vec<Complex64> = acc.dipoles[p][f]
+                            .iter()
+                            .map(|d| project(&axis, d))
+                            .collect();
+                        let saddles: Vec<Option<(Complex64, Complex64)>> = family
+                            .points
+                            .iter()
+                            .map(|pt| pt.saddle().map(|s| (s.t_ret, s.action)))
+                            .collect();
+                        // Periodic fields report family delays only: the phase alone matters.
+                        crate::spectrum::tangent_log_derivatives(
+                            &stage.grid,
+                            &values,
+                            &saddles,
+                            periodic,
+                        )
+                    })
+                    .collect()
+            })
+            .collect()
+    } else {
+        Vec::new()
+    };
+    // Energies where a contributing family's tangent derivative is not resolved by the grid.
+    // For pulses also where a sum cancels strongly (|Σ v_f| below CANCELLATION × Σ|v_f|): its
+    // phase slope then amplifies the members' small errors.
+    let cancels = |pairs: &[usize], k: usize| -> bool {
+        let (mut sum, mut moduli) = (Complex64::new(0.0, 0.0), 0.0);
+        for &p in pairs {
+            for fam in &acc.dipoles[p] {
+                let v = project(&axis, &fam[k]);
+                sum += v;
+                moduli += v.norm();
+            }
+        }
+        moduli > 0.0 && sum.norm() < CANCELLATION * moduli
+    };
+    let every_pair: Vec<usize> = (0..stage.pairs.len()).collect();
+    let unresolved: Vec<usize> = if tangent {
+        (0..n)
+            .filter(|&k| {
+                !periodic
+                    && (cancels(&every_pair, k) || (0..stage.pairs.len()).any(|p| cancels(&[p], k)))
+                    || {
+                        slopes.iter().enumerate().any(|(p, pair)| {
+                            pair.iter().enumerate().any(|(f, fam)| {
+                                // Periodic fields: only the families' own (non-negligible) delays;
+                                // pulses: every member of a sum.
+                                let v = project(&axis, &acc.dipoles[p][f][k]).norm();
+                                fam[k] == crate::spectrum::LogDerivative::Unresolved
+                                    && if periodic { v > floor } else { v > 0.0 }
+                            })
+                        })
+                    }
+            })
+            .collect()
+    } else {
+        Vec::new()
+    };
+    let one_family_delay = |p: usize, f: usize, k: usize| -> Option<f64> {
+        if tangent && unresolved.binary_search(&k).is_ok() {
+            return None;
+        }
+        if tangent {
+            let v = project(&axis, &acc.dipoles[p][f][k]);
+            (v.norm() > floor).then_some(())?;
+            slopes[p][f][k].value().map(|l| l.im)
+        } else {
+            family_delay(&acc.dipoles[p][f], k)
+        }
+    };
+    // The delay of a sum of families (`pairs`: indices of the pairs summed); None for periodic
+    // fields.
+    let sum_delay = |pairs: &[usize], v: &[CVec3], k: usize| -> Option<f64> {
+        if periodic {
+            return None;
+        }
+        if !tangent {
+            return family_delay(v, k);
+        }
+        if unresolved.binary_search(&k).is_ok() {
+            return None;
+        }
+        let dipoles = &acc.dipoles;
+        let slopes = &slopes;
+        let mut parts: Vec<(Complex64, Option<Complex64>)> = Vec::new();
+        for &p in pairs {
+            for f in 0..dipoles[p].len() {
+                parts.push((project(&axis, &dipoles[p][f][k]), slopes[p][f][k].value()));
+            }
+        }
+        crate::spectrum::sum_delay(&parts, floor)
+    };
     // Every family's status at every energy; a row's status follows from them (the one
     // definition of a complete row, crate::status).
     let mut row_families: Vec<Vec<FamilyStatus>> = vec![Vec::new(); n];
@@ -392,7 +507,7 @@ fn finish(plan: &Plan<'_>, mut acc: Accumulator, count: usize) -> Result<Multich
                 kind: (0..n)
                     .map(|k| pair.kernels.values[f][central(k)].kind)
                     .collect(),
-                group_delay: (0..n).map(|k| family_delay(values, k)).collect(),
+                group_delay: (0..n).map(|k| one_family_delay(p, f, k)).collect(),
                 emission_time: (0..n)
                     .map(|k| family.points[central(k)].saddle().map(|s| s.t_ret.re))
                     .collect(),
@@ -403,10 +518,11 @@ fn finish(plan: &Plan<'_>, mut acc: Accumulator, count: usize) -> Result<Multich
             ion: pair.ion,
             rec: pair.rec,
             dipole: (0..n).map(|k| pair_grid[central(k)]).collect(),
-            group_delay: (0..n).map(|k| delay(&pair_grid, k)).collect(),
+            group_delay: (0..n).map(|k| sum_delay(&[p], &pair_grid, k)).collect(),
             families,
         });
     }
+    let all_pairs: Vec<usize> = (0..stage.pairs.len()).collect();
     let status: Vec<RowStatus> = row_families.iter().map(RowStatus::of).collect();
     let complete = status.iter().map(|s| *s == RowStatus::Complete).collect();
     let holes = acc.holes.finish(&plan.holes);
@@ -423,10 +539,13 @@ fn finish(plan: &Plan<'_>, mut acc: Accumulator, count: usize) -> Result<Multich
             .map(|c| c.label.clone())
             .collect(),
         total: (0..n).map(|k| total_grid[central(k)]).collect(),
-        group_delay: (0..n).map(|k| delay(&total_grid, k)).collect(),
+        group_delay: (0..n)
+            .map(|k| sum_delay(&all_pairs, &total_grid, k))
+            .collect(),
         complete,
         status,
         pairs,
+        unresolved_group_delays: unresolved,
         orientations: count,
         holes,
         reference: plan.holes.reference,

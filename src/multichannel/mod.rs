@@ -36,6 +36,7 @@
 mod assemble;
 mod classes;
 mod holes;
+mod refine;
 mod stage;
 mod terms;
 
@@ -43,6 +44,7 @@ pub use assemble::{
     HoleDensity, HoleSample, MultichannelSpectrum, PairSpectrum, assemble, assemble_serial,
     orientations,
 };
+pub use refine::{REFINE_STEP, refine_group_delays};
 pub use stage::{
     ChannelStructure, PairStage, TrajectoryStage, coupling_components, propagation_needed,
     trajectory_stage,
@@ -54,6 +56,7 @@ use crate::dipole::SaddleSum;
 use crate::hole::DEFAULT_MAX_STEP;
 pub use crate::hole::HoleContour;
 use crate::orbits::OrbitSettings;
+pub use crate::spectrum::GroupDelays;
 
 /// Where the Gaussian structure factors of one side (ionization or recombination) go.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize)]
@@ -99,6 +102,9 @@ pub enum HoleExpansion {
 ///
 /// # Errors
 /// Those of [`trajectory_stage`] and [`assemble`].
+///
+/// Group delays the grid does not resolve are recomputed by difference
+/// ([`refine_group_delays`]).
 pub fn spectrum(
     field: &crate::field::Field,
     target: &crate::target::Target,
@@ -106,7 +112,9 @@ pub fn spectrum(
     settings: &MultichannelSettings,
 ) -> crate::error::Result<MultichannelSpectrum> {
     let stage = trajectory_stage(field, target, energies, settings)?;
-    assemble(field, target, &stage, settings.linear_fast_path, &|_, _| {})
+    let mut s = assemble(field, target, &stage, settings.linear_fast_path, &|_, _| {})?;
+    refine_group_delays(field, target, settings, settings.linear_fast_path, &mut s)?;
+    Ok(s)
 }
 
 /// Settings of a multichannel calculation.
@@ -118,8 +126,8 @@ pub struct MultichannelSettings {
     pub epsilon: f64,
     /// Trajectory-stage settings.
     pub orbits: OrbitSettings,
-    /// Half-width δ of the group-delay difference, as a fraction of ω; `None` skips group delays.
-    pub group_delay_step: Option<f64>,
+    /// How group delays are computed ([`GroupDelays`]; skipped with [`GroupDelays::Skip`]).
+    pub group_delays: GroupDelays,
     /// Largest step of the hole propagator grid (a.u.).
     pub hole_step: f64,
     /// Use the factorised structure evaluation for linearly polarised fields (one evaluation per
@@ -141,7 +149,7 @@ impl Default for MultichannelSettings {
             sum: SaddleSum::Uniform,
             epsilon: 0.0,
             orbits: OrbitSettings::default(),
-            group_delay_step: Some(1e-3),
+            group_delays: GroupDelays::Tangent,
             hole_step: DEFAULT_MAX_STEP,
             linear_fast_path: true,
             hole_contour: HoleContour::Complex,

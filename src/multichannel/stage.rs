@@ -4,6 +4,7 @@ use std::collections::HashMap;
 use std::sync::Arc;
 
 use nalgebra::Vector3;
+use rayon::prelude::*;
 
 use super::{MultichannelSettings, StructurePlacement};
 use crate::dipole::{Kernels, kernels};
@@ -54,6 +55,9 @@ pub struct TrajectoryStage {
     pub stride: usize,
     /// δ of the group-delay triples (a.u.), if any.
     pub delta: Option<f64>,
+    /// How group delays are computed on this grid
+    /// ([`crate::spectrum::effective_group_delays`]).
+    pub group_delays: crate::spectrum::GroupDelays,
     /// Channel pairs, diagonal ones first in channel order, then the others in (ion, rec) order.
     pub pairs: Vec<PairStage>,
     /// Field samples for the hole propagator, when the ion is not trivially uncoupled.
@@ -146,8 +150,10 @@ pub fn trajectory_stage(
     energies: &[f64],
     settings: &MultichannelSettings,
 ) -> Result<TrajectoryStage> {
+    let group_delays =
+        crate::spectrum::effective_group_delays(energies, settings.group_delays, field.omega());
     let (stride, delta, grid) =
-        crate::spectrum::group_delay_grid(energies, settings.group_delay_step, field.omega())?;
+        crate::spectrum::group_delay_grid(energies, group_delays, field.omega())?;
     for (k, c) in target.channels.iter().enumerate() {
         if let Some((lo, hi)) = c.recombination.energy_range() {
             let (glo, ghi) = grid
@@ -184,34 +190,46 @@ pub fn trajectory_stage(
     }
     // The classical seeds depend on the field only: found once for all pairs.
     let seeds = families::discover(field, &settings.orbits.discovery);
-    let mut cache: HashMap<(u64, u64), Arc<OrbitTable>> = HashMap::new();
-    let mut pairs = Vec::with_capacity(list.len());
-    for (ion, rec) in list {
-        let pair = ChannelPair::new(target.channels[ion].ip, target.channels[rec].ip);
-        let key = (pair.ip_ion.to_bits(), pair.ip_rec.to_bits());
-        let table = match cache.get(&key) {
-            Some(t) => t.clone(),
-            None => {
-                let t = Arc::new(solve_orbits_seeded(
-                    field,
-                    pair,
-                    &grid,
-                    &settings.orbits,
-                    &seeds,
-                )?);
-                cache.insert(key, t.clone());
-                t
-            }
-        };
-        let kernels = kernels(&table, settings.sum, settings.epsilon);
-        pairs.push(PairStage {
-            ion,
-            rec,
-            table,
-            kernels,
-            times: Vec::new(),
-        });
+    // One table per distinct pair of energies, in order of first appearance, solved in
+    // parallel (each table is independent and deterministic; errors reported in list order).
+    let key_of = |ion: usize, rec: usize| {
+        (
+            target.channels[ion].ip.to_bits(),
+            target.channels[rec].ip.to_bits(),
+        )
+    };
+    let mut keys: Vec<(usize, usize)> = Vec::new();
+    for &(ion, rec) in &list {
+        if !keys.iter().any(|&(a, b)| key_of(a, b) == key_of(ion, rec)) {
+            keys.push((ion, rec));
+        }
     }
+    let solved: Vec<Result<OrbitTable>> = keys
+        .par_iter()
+        .map(|&(ion, rec)| {
+            let pair = ChannelPair::new(target.channels[ion].ip, target.channels[rec].ip);
+            solve_orbits_seeded(field, pair, &grid, &settings.orbits, &seeds)
+        })
+        .collect();
+    let mut cache: HashMap<(u64, u64), Arc<OrbitTable>> = HashMap::new();
+    for (&(ion, rec), table) in keys.iter().zip(solved) {
+        cache.insert(key_of(ion, rec), Arc::new(table?));
+    }
+    // Kernels per pair, in parallel too (pure functions of the tables).
+    let mut pairs: Vec<PairStage> = list
+        .par_iter()
+        .map(|&(ion, rec)| {
+            let table = cache[&key_of(ion, rec)].clone();
+            let kernels = kernels(&table, settings.sum, settings.epsilon);
+            PairStage {
+                ion,
+                rec,
+                table,
+                kernels,
+                times: Vec::new(),
+            }
+        })
+        .collect();
     let structure: Vec<ChannelStructure> = target
         .channels
         .iter()
@@ -276,6 +294,7 @@ pub fn trajectory_stage(
         grid,
         stride,
         delta,
+        group_delays,
         pairs,
         samples,
         linear_axis: field.linear_axis(),

@@ -74,13 +74,22 @@ impl ZetaBranch {
         let first = Complex64::from_polar(r, w.arg() / 3.0);
         // The other two cube roots: multiply by the cube roots of unity e^{±2πi/3}.
         let unity = Complex64::new(-0.5, 0.5 * 3f64.sqrt());
-        let mut roots =
-            [first, first * unity, first * unity.conj()].map(|z| (modulus(z - guess), z));
-        roots.sort_by(|x, y| x.0.total_cmp(&y.0));
-        if roots[0].0 > 0.5 * roots[1].0 {
+        // The nearest root and the distance of the next nearest (no sort: three candidates).
+        let roots = [first, first * unity, first * unity.conj()].map(|z| (modulus(z - guess), z));
+        let mut best = 0;
+        for j in 1..3 {
+            if roots[j].0.total_cmp(&roots[best].0).is_lt() {
+                best = j;
+            }
+        }
+        let second = (0..3)
+            .filter(|&j| j != best)
+            .map(|j| roots[j].0)
+            .fold(f64::INFINITY, f64::min);
+        if roots[best].0 > 0.5 * second {
             return None;
         }
-        let zeta = roots[0].1;
+        let zeta = roots[best].1;
         let sqrt = sqrt_matching(zeta, delta);
         let q = crate::cmath::sqrt(sqrt);
         let quarter = if modulus(q - self.quarter) <= modulus(-q - self.quarter) {

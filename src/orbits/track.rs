@@ -64,7 +64,7 @@ impl Member {
 
     pub fn saddle(&self, field: &Field) -> Saddle {
         Saddle {
-            e_exit: field.real_at(self.t_ion.re).1,
+            e_exit: field.electric_at_real(self.t_ion.re),
             t_ret: self.t_ret,
             t_ion: self.t_ion,
             action: self.eval.action,
@@ -116,22 +116,26 @@ pub(crate) struct Closest {
     pub t_ion: Complex64,
 }
 
+/// One continuation step of `state` by `h`: the members at `state.omega + h` are written into
+/// `next` (cleared first; a buffer reused across steps, so that a step allocates nothing), and
+/// the pair's new Airy branch is returned.
 fn try_step(
     field: &Field,
     pair: ChannelPair,
     state: &GroupState,
     h: f64,
     settings: &TrackSettings,
-) -> Result<GroupState, FailureReason> {
+    next: &mut Vec<Member>,
+) -> Result<Option<ZetaBranch>, FailureReason> {
     let omega = state.omega + h;
     let sep_old = if state.members.len() == 2 {
         state.members[0].distance(&state.members[1])
     } else {
         f64::INFINITY
     };
-    let mut next = Vec::with_capacity(state.members.len());
-    let mut corrections = Vec::with_capacity(state.members.len());
-    for m in &state.members {
+    next.clear();
+    let mut corrections = [0.0_f64; 2];
+    for (slot, m) in state.members.iter().enumerate() {
         let (dr, di) = m.tangent();
         let (pr, pi) = (m.t_ret + dr * h, m.t_ion + di * h);
         let predicted_move = h.abs() * modulus(dr).max(modulus(di));
@@ -143,7 +147,9 @@ fn try_step(
             return Err(FailureReason::Newton(out.termination));
         }
         let correction = modulus(out.t_ret - pr).max(modulus(out.t_ion - pi));
-        corrections.push(correction);
+        if let Some(c) = corrections.get_mut(slot) {
+            *c = correction;
+        }
         let mut member = Member::new(out.t_ret, out.t_ion, out.eval, out.iterations, out.residual);
         let r = member.root;
         member.root = if modulus(r - m.root) <= modulus(-r - m.root) {
@@ -153,7 +159,8 @@ fn try_step(
         };
         next.push(member);
     }
-    let zeta = if next.len() == 2 {
+    let corrections = &corrections[..state.members.len().min(2)];
+    if next.len() == 2 {
         let sep_new = next[0].distance(&next[1]);
         let limit = 0.25 * sep_old.min(sep_new);
         if sep_new == 0.0 || corrections.iter().any(|&c| c > limit) {
@@ -162,24 +169,18 @@ fn try_step(
         let minus = &next[state.minus];
         let plus = &next[1 - state.minus];
         match state.zeta {
-            Some(z) => Some(
+            Some(z) => Ok(Some(
                 z.advance(half_difference(minus, plus), omega)
                     .ok_or(FailureReason::AmbiguousAiryBranch)?,
-            ),
-            None => None,
+            )),
+            None => Ok(None),
         }
     } else {
         if corrections.iter().any(|&c| c > settings.lone_correction) {
             return Err(FailureReason::PredictorTooLong);
         }
-        None
-    };
-    Ok(GroupState {
-        omega,
-        members: next,
-        minus: state.minus,
-        zeta,
-    })
+        Ok(None)
+    }
 }
 
 /// Result of one sweep at one target: the members' points and the pair point.
@@ -199,6 +200,7 @@ pub(crate) fn sweep(
     closest: &mut Option<Closest>,
 ) -> Vec<TargetResult> {
     let mut state = start.clone();
+    let mut spare: Vec<Member> = Vec::with_capacity(state.members.len());
     let mut h_cur = settings.max_step;
     let mut out = Vec::with_capacity(targets.len());
     for &(index, target) in targets {
@@ -207,21 +209,24 @@ pub(crate) fn sweep(
         while state.omega != target {
             let remaining = target - state.omega;
             let h = remaining.signum() * remaining.abs().min(h_cur);
-            match try_step(field, pair, &state, h, settings) {
-                Ok(next) => {
-                    if next.members.len() == 2 {
-                        let sep = next.members[0].distance(&next.members[1]);
+            match try_step(field, pair, &state, h, settings, &mut spare) {
+                Ok(zeta) => {
+                    let omega = state.omega + h;
+                    if spare.len() == 2 {
+                        let sep = spare[0].distance(&spare[1]);
                         if closest.is_none_or(|c| sep < c.separation) {
-                            let (a, b) = (&next.members[0], &next.members[1]);
+                            let (a, b) = (&spare[0], &spare[1]);
                             *closest = Some(Closest {
-                                omega: next.omega,
+                                omega,
                                 separation: sep,
                                 t_ret: 0.5 * (a.t_ret + b.t_ret),
                                 t_ion: 0.5 * (a.t_ion + b.t_ion),
                             });
                         }
                     }
-                    state = next;
+                    std::mem::swap(&mut state.members, &mut spare);
+                    state.omega = omega;
+                    state.zeta = zeta;
                     if h.abs() == remaining.abs() {
                         state.omega = target;
                     }

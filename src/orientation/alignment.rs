@@ -177,6 +177,22 @@ impl AlignmentDistribution {
         })
     }
 
+    /// The model in words, with its parameters (for the provenance of an output).
+    #[must_use]
+    pub fn describe(&self) -> String {
+        match &self.model {
+            Model::Isotropic => "isotropic".into(),
+            Model::Cos2n { power_n } => format!("cos2n: rho ∝ cos^(2n) beta, n = {power_n}"),
+            Model::ExpCos2 { strength, .. } => {
+                format!("exp_cos2: rho ∝ exp(a cos² beta), a = {strength}")
+            }
+            Model::Table { interpolant, .. } => format!(
+                "table: rho(beta) from {} tabulated angles, monotone cubic interpolation",
+                interpolant.len()
+            ),
+        }
+    }
+
     /// The normalised density `ρ(β)` (per steradian of the molecular-axis direction), for
     /// `β ∈ [0, π]` (rad). Analytic models accept any real `β` (they depend on `cos β`); a table
     /// holds its end values outside `[0, π]`. NaN gives NaN.

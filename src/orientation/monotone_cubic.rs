@@ -17,6 +17,11 @@ pub(super) struct MonotoneCubic {
 }
 
 impl MonotoneCubic {
+    /// Number of nodes.
+    pub(super) fn len(&self) -> usize {
+        self.x.len()
+    }
+
     /// Builds the interpolant. The caller guarantees `x.len() == y.len() ≥ 2`, finite values and
     /// strictly increasing `x`; for anything else the interpolant is unspecified (but building
     /// and evaluating it never panics).

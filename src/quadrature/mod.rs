@@ -742,6 +742,7 @@ pub fn quadrature_spectrum(
         complete: vec![true; n],
         status: vec![crate::status::RowStatus::Complete; n],
         pairs,
+        unresolved_group_delays: Vec::new(),
         orientations: dipole.orientations,
         holes: Vec::new(),
         reference,

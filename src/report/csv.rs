@@ -1,64 +1,53 @@
-//! CSV writer with the same columns as the JSON rows (complex cells split into `_re`, `_im`).
+//! CSV writer: a header with the row's column names, then one line per row (RFC 4180 quoting
+//! of text; numbers as in [`super::number`]; missing values empty). Each line is assembled in
+//! a reused buffer and written with one call.
 
-use super::{Cell, Table};
+use std::io::{self, Write};
 
-/// Shortest round-trip decimal, in exponent notation for very small or large magnitudes.
-fn real(x: Option<f64>) -> String {
-    match x {
-        Some(v) if v.is_finite() => {
-            let a = v.abs();
-            if a != 0.0 && !(1e-4..1e15).contains(&a) {
-                format!("{v:e}")
-            } else {
-                format!("{v}")
-            }
-        }
-        _ => String::new(),
+use super::number::push_scalar;
+use super::{Cell, RowSource, each_row};
+
+fn push_text(line: &mut Vec<u8>, s: &str) {
+    if s.contains([',', '"', '\n', '\r']) {
+        line.push(b'"');
+        line.extend_from_slice(s.replace('"', "\"\"").as_bytes());
+        line.push(b'"');
+    } else {
+        line.extend_from_slice(s.as_bytes());
     }
 }
 
-fn quote(s: &str) -> String {
-    if s.contains([',', '"', '\n']) {
-        format!("\"{}\"", s.replace('"', "\"\""))
-    } else {
-        s.to_string()
-    }
-}
-
-/// CSV text of a table, header first.
-pub fn document(table: &Table) -> String {
-    let mut header = Vec::with_capacity(table.columns.len());
-    if let Some(first) = table.rows.first() {
-        for (name, cell) in table.columns.iter().zip(first) {
-            match cell {
-                Cell::Complex(_) => {
-                    header.push(format!("{name}_re"));
-                    header.push(format!("{name}_im"));
+/// Streams the rows of `source` as CSV into `w`, header first (an empty header line when there
+/// are no rows). Returns the number of rows.
+pub fn write(source: &dyn RowSource, w: &mut dyn Write) -> io::Result<usize> {
+    let mut buffer = zmij::Buffer::new();
+    let mut line: Vec<u8> = Vec::with_capacity(1024);
+    let n = each_row(source, |n, r| {
+        line.clear();
+        if n == 0 {
+            for (i, name) in r.names().iter().enumerate() {
+                if i > 0 {
+                    line.push(b',');
                 }
-                _ => header.push(name.clone()),
+                push_text(&mut line, name);
+            }
+            line.push(b'\n');
+        }
+        for (i, c) in r.cells().iter().enumerate() {
+            if i > 0 {
+                line.push(b',');
+            }
+            if !push_scalar(&mut line, c, b"", &mut buffer)
+                && let Cell::Text(s) = c
+            {
+                push_text(&mut line, s);
             }
         }
-    } else {
-        header.extend(table.columns.iter().cloned());
+        line.push(b'\n');
+        w.write_all(&line)
+    })?;
+    if n == 0 {
+        w.write_all(b"\n")?;
     }
-    let mut out = header.join(",");
-    out.push('\n');
-    for row in &table.rows {
-        let mut fields = Vec::with_capacity(header.len());
-        for c in row {
-            match c {
-                Cell::Real(x) => fields.push(real(*x)),
-                Cell::Int(i) => fields.push(i.to_string()),
-                Cell::Complex(z) => {
-                    fields.push(real(z.map(|z| z.re)));
-                    fields.push(real(z.map(|z| z.im)));
-                }
-                Cell::Bool(b) => fields.push(b.to_string()),
-                Cell::Text(s) => fields.push(quote(s)),
-            }
-        }
-        out.push_str(&fields.join(","));
-        out.push('\n');
-    }
-    out
+    Ok(n)
 }

@@ -1,43 +1,92 @@
-//! JSON writer: metadata object plus the rows of a [`Table`] under one key.
+//! JSON writer: the metadata object (pretty, two-space indent) with the rows of a
+//! [`RowSource`] streamed under one key, one compact object per line:
+//!
+//! ```text
+//! {
+//!   "holecast_version": "…",
+//!   …,
+//!   "points": [
+//!     {"order":11,"energy_ev":17.05…,…},
+//!     …
+//!   ]
+//! }
+//! ```
+//!
+//! The keys of every row object are the CSV header, in the same order.
 
-use serde_json::{Map, Value, json};
+use std::io::{self, Write};
 
-use super::{Cell, Table};
+use serde_json::{Map, Value};
 
-/// JSON value of a cell (complex as `[re, im]`, missing as null).
-pub fn cell_value(c: &Cell) -> Value {
-    match c {
-        Cell::Real(Some(x)) if x.is_finite() => json!(x),
-        Cell::Real(_) => Value::Null,
-        Cell::Int(i) => json!(i),
-        Cell::Complex(Some(z)) if z.re.is_finite() && z.im.is_finite() => json!([z.re, z.im]),
-        Cell::Complex(_) => Value::Null,
-        Cell::Bool(b) => json!(b),
-        Cell::Text(s) => json!(s),
-    }
+use super::number::push_scalar;
+use super::{Cell, RowSource, each_row};
+
+/// Appends a JSON string literal (escaped by serde_json).
+fn push_string(line: &mut Vec<u8>, s: &str) -> io::Result<()> {
+    serde_json::to_writer(line, s).map_err(io::Error::other)
 }
 
-/// Rows of a table as an array of objects with the table's column names as keys.
-pub fn rows(table: &Table) -> Value {
-    Value::Array(
-        table
-            .rows
-            .iter()
-            .map(|r| {
-                let mut m = Map::new();
-                for (name, c) in table.columns.iter().zip(r) {
-                    m.insert(name.clone(), cell_value(c));
-                }
-                Value::Object(m)
-            })
-            .collect(),
-    )
+/// Streams `meta` with the rows of `source` added under `key` (the last key) into `w`.
+/// Returns the number of rows.
+pub fn write(
+    meta: &Map<String, Value>,
+    key: &str,
+    source: &dyn RowSource,
+    w: &mut dyn Write,
+) -> io::Result<usize> {
+    let head = serde_json::to_string_pretty(meta).map_err(io::Error::other)?;
+    // `head` is `{` … `}`; reopen it to append the rows' key.
+    let body = head.strip_suffix('}').unwrap_or("{\n").trim_end();
+    w.write_all(body.as_bytes())?;
+    let mut line: Vec<u8> = Vec::with_capacity(2048);
+    line.extend_from_slice(if meta.is_empty() { b"\n  " } else { b",\n  " });
+    push_string(&mut line, key)?;
+    line.extend_from_slice(b": [");
+    w.write_all(&line)?;
+    let mut keys: Vec<Vec<u8>> = Vec::new();
+    let mut buffer = zmij::Buffer::new();
+    let n = each_row(source, |n, r| {
+        line.clear();
+        if n == 0 {
+            keys = r
+                .names()
+                .iter()
+                .map(|name| {
+                    let mut k = serde_json::to_vec::<str>(name).map_err(io::Error::other)?;
+                    k.push(b':');
+                    Ok(k)
+                })
+                .collect::<io::Result<_>>()?;
+            line.extend_from_slice(b"\n    {");
+        } else {
+            line.extend_from_slice(b",\n    {");
+        }
+        for (i, (k, c)) in keys.iter().zip(r.cells()).enumerate() {
+            if i > 0 {
+                line.push(b',');
+            }
+            line.extend_from_slice(k);
+            if !push_scalar(&mut line, c, b"null", &mut buffer)
+                && let Cell::Text(s) = c
+            {
+                push_string(&mut line, s)?;
+            }
+        }
+        line.push(b'}');
+        w.write_all(&line)
+    })?;
+    w.write_all(if n == 0 { b"]\n}\n" } else { b"\n  ]\n}\n" })?;
+    Ok(n)
 }
 
-/// Pretty JSON text of `meta` with the table's rows added under `key`.
-pub fn document(mut meta: Map<String, Value>, key: &str, table: &Table) -> String {
-    meta.insert(key.to_string(), rows(table));
-    let mut s = serde_json::to_string_pretty(&Value::Object(meta)).unwrap_or_default();
-    s.push('\n');
-    s
+/// The JSON text of `meta` with the rows under `key`, in memory (for small results and tests;
+/// the binary streams with [`write`]).
+pub fn document(
+    meta: &Map<String, Value>,
+    key: &str,
+    source: &dyn RowSource,
+) -> io::Result<String> {
+    let mut out = Vec::new();
+    write(meta, key, source, &mut out)?;
+    String::from_utf8(out).map_err(io::Error::other)
 }

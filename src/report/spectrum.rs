@@ -1,10 +1,13 @@
 //! The spectrum as rows: totals and polarization, then every channel pair and every family.
 
 use std::collections::BTreeMap;
+use std::io;
 
 use num_complex::Complex64;
 
-use super::{Cell, RowBuilder, Table};
+use super::lattice::Lattice;
+use super::orbits::{check_grid, energy_cells};
+use super::{Cell, Row, RowSource};
 use crate::dipole::KernelKind;
 use crate::field::CVec3;
 use crate::multichannel::MultichannelSpectrum;
@@ -33,7 +36,7 @@ fn kernel_text(k: KernelKind, status: FamilyStatus) -> &'static str {
 
 /// A row with non-finite numbers: `status` becomes `non-finite`, `complete` false, and
 /// `non_finite_columns` names them (the writers write them as null).
-fn mark_non_finite(r: &mut RowBuilder) {
+fn mark_non_finite(r: &mut Row) {
     let bad = r.non_finite();
     if !bad.is_empty() {
         r.set("status", Cell::Text(NON_FINITE.into()))
@@ -86,82 +89,98 @@ pub fn label_sums(s: &MultichannelSpectrum) -> BTreeMap<String, Vec<Option<CVec3
     out
 }
 
-/// Rows: one per energy.
-pub fn rows(s: &MultichannelSpectrum) -> Result<Table, String> {
-    let mut out = Table::default();
-    let phases = s.phases();
-    let labels = label_sums(s);
-    for (k, phase) in phases.iter().enumerate() {
-        let d = s.total[k];
-        let (par, perp) = s.polarization_components(k);
-        let state = s.polarization_state(k);
-        let mut r = RowBuilder::default();
-        r.real("order", Some(s.energies[k] / s.omega))
-            .real("energy_ev", Some(units::au_to_ev(s.energies[k])))
-            .real("intensity", Some(s.intensity(k)))
-            .real("power", Some(s.power(k)))
-            .real("phase_rad", *phase)
-            .real("group_delay_fs", fs(s.group_delay[k]))
-            .push("complete", Cell::Bool(s.complete[k]))
-            .push("status", Cell::Text(s.status[k].code().into()))
-            .push("non_finite_columns", Cell::Text(String::new()))
-            .complex("dipole_x", Some(d.x))
-            .complex("dipole_y", Some(d.y))
-            .complex("dipole_z", Some(d.z))
-            .complex("parallel", Some(par))
-            .complex("perpendicular", Some(perp))
-            .real("ellipticity", state.map(|s| s.0))
-            .real("polarization_angle_deg", state.map(|s| s.1.to_degrees()))
-            .real(
-                "incoherent_pair_sum",
-                Some(s.pairs.iter().map(|p| norm2(&p.dipole[k])).sum()),
-            );
-        let shares = s.recombination_shares(k);
-        if s.labels.len() > 1 {
-            for (m, label) in s.labels.iter().enumerate() {
-                r.real(
-                    format!("recombined_{label}_share"),
-                    shares.as_ref().map(|v| v[m]),
-                );
-            }
-        }
-        for (label, v) in &labels {
-            r.real(format!("{label}_intensity"), v[k].map(|d| norm2(&d)));
-        }
-        for (p, pair) in s.pairs.iter().enumerate() {
-            let key = pair_key(s, p);
-            let dp = pair.dipole[k];
-            r.real(format!("{key}_intensity"), Some(norm2(&dp)))
+/// The spectrum rows: one per energy. `grid` (if given) labels the energies exactly
+/// ([`super::lattice`]).
+pub struct SpectrumRows<'a> {
+    /// The spectrum.
+    pub spectrum: &'a MultichannelSpectrum,
+    /// Exact labels of the energy grid.
+    pub grid: Option<&'a Lattice>,
+}
+
+impl RowSource for SpectrumRows<'_> {
+    fn for_each_row(
+        &self,
+        r: &mut Row,
+        visit: &mut dyn FnMut(&Row) -> io::Result<()>,
+    ) -> io::Result<()> {
+        let s = self.spectrum;
+        check_grid(self.grid, s.energies.len())?;
+        let phases = s.phases();
+        let labels = label_sums(s);
+        for (k, phase) in phases.iter().enumerate() {
+            let d = s.total[k];
+            let (par, perp) = s.polarization_components(k);
+            let state = s.polarization_state(k);
+            let (order, energy_ev) = energy_cells(self.grid, k, s.energies[k], s.omega);
+            r.clear();
+            r.push("order", order)
+                .push("energy_ev", energy_ev)
+                .real("intensity", Some(s.intensity(k)))
+                .real("power", Some(s.power(k)))
+                .real("phase_rad", *phase)
+                .real("group_delay_fs", fs(s.group_delay[k]))
+                .push("complete", Cell::Bool(s.complete[k]))
+                .push("status", Cell::Text(s.status[k].code().into()))
+                .push("non_finite_columns", Cell::Text(String::new()))
+                .complex_named(("dipole_x_re", "dipole_x_im"), Some(d.x))
+                .complex_named(("dipole_y_re", "dipole_y_im"), Some(d.y))
+                .complex_named(("dipole_z_re", "dipole_z_im"), Some(d.z))
+                .complex_named(("parallel_re", "parallel_im"), Some(par))
+                .complex_named(("perpendicular_re", "perpendicular_im"), Some(perp))
+                .real("ellipticity", state.map(|s| s.0))
+                .real("polarization_angle_deg", state.map(|s| s.1.to_degrees()))
                 .real(
-                    format!("{key}_phase_rad"),
-                    Some(project(&s.axis, &dp).arg()),
-                )
-                .real(format!("{key}_group_delay_fs"), fs(pair.group_delay[k]));
-        }
-        for (p, pair) in s.pairs.iter().enumerate() {
-            let pk = pair_key(s, p);
-            for con in &pair.families {
-                let key = format!(
-                    "{pk}_{}",
-                    family_key(&con.label.to_string(), con.half_cycle)
+                    "incoherent_pair_sum",
+                    Some(s.pairs.iter().map(|p| norm2(&p.dipole[k])).sum()),
                 );
-                let v = con.dipole[k];
-                let par: Option<Complex64> = v.map(|v| project(&s.axis, &v));
-                r.real(format!("{key}_intensity"), v.map(|v| norm2(&v)))
-                    .real(format!("{key}_phase_rad"), par.map(|p| p.arg()))
-                    .real(format!("{key}_emission_time_fs"), fs(con.emission_time[k]))
-                    .real(format!("{key}_group_delay_fs"), fs(con.group_delay[k]))
-                    .push(
-                        format!("{key}_kernel"),
-                        Cell::Text(kernel_text(con.kind[k], con.status[k]).into()),
-                    )
-                    .push(format!("{key}_status"), Cell::Text(con.status[k].code()));
+            let shares = s.recombination_shares(k);
+            if s.labels.len() > 1 {
+                for (m, label) in s.labels.iter().enumerate() {
+                    r.real(
+                        format!("recombined_{label}_share"),
+                        shares.as_ref().map(|v| v[m]),
+                    );
+                }
             }
+            for (label, v) in &labels {
+                r.real(format!("{label}_intensity"), v[k].map(|d| norm2(&d)));
+            }
+            for (p, pair) in s.pairs.iter().enumerate() {
+                let key = pair_key(s, p);
+                let dp = pair.dipole[k];
+                r.real(format!("{key}_intensity"), Some(norm2(&dp)))
+                    .real(
+                        format!("{key}_phase_rad"),
+                        Some(project(&s.axis, &dp).arg()),
+                    )
+                    .real(format!("{key}_group_delay_fs"), fs(pair.group_delay[k]));
+            }
+            for (p, pair) in s.pairs.iter().enumerate() {
+                let pk = pair_key(s, p);
+                for con in &pair.families {
+                    let key = format!(
+                        "{pk}_{}",
+                        family_key(&con.label.to_string(), con.half_cycle)
+                    );
+                    let v = con.dipole[k];
+                    let par: Option<Complex64> = v.map(|v| project(&s.axis, &v));
+                    r.real(format!("{key}_intensity"), v.map(|v| norm2(&v)))
+                        .real(format!("{key}_phase_rad"), par.map(|p| p.arg()))
+                        .real(format!("{key}_emission_time_fs"), fs(con.emission_time[k]))
+                        .real(format!("{key}_group_delay_fs"), fs(con.group_delay[k]))
+                        .push(
+                            format!("{key}_kernel"),
+                            Cell::Text(kernel_text(con.kind[k], con.status[k]).into()),
+                        )
+                        .push(format!("{key}_status"), Cell::Text(con.status[k].code()));
+                }
+            }
+            mark_non_finite(r);
+            visit(r)?;
         }
-        mark_non_finite(&mut r);
-        out.add(r)?;
+        Ok(())
     }
-    Ok(out)
 }
 
 /// The status of the reference channel's family behind a hole density, at energy index `k`.
@@ -180,49 +199,65 @@ fn reference_status(
 
 /// Hole-dynamics rows: one per (reference family, energy); `status` is `complete` where the
 /// hole was decoded, else the reference family's status (`below-threshold`, `failed-…`, …).
-pub fn hole_rows(s: &MultichannelSpectrum) -> Result<Table, String> {
-    let mut out = Table::default();
-    let n = s.labels.len();
-    for h in &s.holes {
-        for (k, point) in h.points.iter().enumerate() {
-            let mut r = RowBuilder::default();
-            r.real("order", Some(s.energies[k] / s.omega))
-                .real("energy_ev", Some(units::au_to_ev(s.energies[k])))
-                .push("family", Cell::Text(h.label.to_string()))
-                .push("half_cycle", Cell::Int(i64::from(h.half_cycle)))
-                .real("t_ion_fs", point.as_ref().map(|p| units::au_to_fs(p.t_ion)))
-                .real("t_ret_fs", point.as_ref().map(|p| units::au_to_fs(p.t_ret)))
-                .real(
-                    "delay_fs",
-                    point.as_ref().map(|p| units::au_to_fs(p.t_ret - p.t_ion)),
-                )
-                .real("yield", point.as_ref().map(|p| p.yield_weight))
-                .push(
-                    "status",
-                    Cell::Text(match (point, reference_status(s, h, k)) {
-                        (Some(_), _) => "complete".into(),
-                        (None, Some(st)) => st.code(),
-                        (None, None) => "no-saddle".into(),
-                    }),
-                )
-                .push("non_finite_columns", Cell::Text(String::new()));
-            for (i, label) in s.labels.iter().enumerate() {
-                r.real(
-                    format!("population_{label}"),
-                    point.as_ref().map(|p| p.rho[(i, i)].re),
-                );
-            }
-            for i in 0..n {
-                for j in i + 1..n {
-                    let c = point.as_ref().map(|p| p.rho[(i, j)]);
-                    let key = format!("coherence_{}_{}", s.labels[i], s.labels[j]);
-                    r.real(format!("{key}_abs"), c.map(|c| c.norm()))
-                        .real(format!("{key}_phase_rad"), c.map(|c| c.arg()));
+/// `grid` (if given) labels the energies exactly ([`super::lattice`]).
+pub struct HoleRows<'a> {
+    /// The spectrum.
+    pub spectrum: &'a MultichannelSpectrum,
+    /// Exact labels of the energy grid.
+    pub grid: Option<&'a Lattice>,
+}
+
+impl RowSource for HoleRows<'_> {
+    fn for_each_row(
+        &self,
+        r: &mut Row,
+        visit: &mut dyn FnMut(&Row) -> io::Result<()>,
+    ) -> io::Result<()> {
+        let s = self.spectrum;
+        check_grid(self.grid, s.energies.len())?;
+        let n = s.labels.len();
+        for h in &s.holes {
+            for (k, point) in h.points.iter().enumerate() {
+                let (order, energy_ev) = energy_cells(self.grid, k, s.energies[k], s.omega);
+                r.clear();
+                r.push("order", order)
+                    .push("energy_ev", energy_ev)
+                    .push("family", Cell::Text(h.label.to_string()))
+                    .push("half_cycle", Cell::Int(i64::from(h.half_cycle)))
+                    .real("t_ion_fs", point.as_ref().map(|p| units::au_to_fs(p.t_ion)))
+                    .real("t_ret_fs", point.as_ref().map(|p| units::au_to_fs(p.t_ret)))
+                    .real(
+                        "delay_fs",
+                        point.as_ref().map(|p| units::au_to_fs(p.t_ret - p.t_ion)),
+                    )
+                    .real("yield", point.as_ref().map(|p| p.yield_weight))
+                    .push(
+                        "status",
+                        Cell::Text(match (point, reference_status(s, h, k)) {
+                            (Some(_), _) => "complete".into(),
+                            (None, Some(st)) => st.code(),
+                            (None, None) => "no-saddle".into(),
+                        }),
+                    )
+                    .push("non_finite_columns", Cell::Text(String::new()));
+                for (i, label) in s.labels.iter().enumerate() {
+                    r.real(
+                        format!("population_{label}"),
+                        point.as_ref().map(|p| p.rho[(i, i)].re),
+                    );
                 }
+                for i in 0..n {
+                    for j in i + 1..n {
+                        let c = point.as_ref().map(|p| p.rho[(i, j)]);
+                        let key = format!("coherence_{}_{}", s.labels[i], s.labels[j]);
+                        r.real(format!("{key}_abs"), c.map(|c| c.norm()))
+                            .real(format!("{key}_phase_rad"), c.map(|c| c.arg()));
+                    }
+                }
+                mark_non_finite(r);
+                visit(r)?;
             }
-            mark_non_finite(&mut r);
-            out.add(r)?;
         }
+        Ok(())
     }
-    Ok(out)
 }

@@ -1,0 +1,72 @@
+//! The ionized fraction that sets the free-electron dispersion of the medium.
+//!
+//! The fraction of molecules ionized by the time the harmonics are made, taken at the centre of
+//! the pulse (`t = 0`, where the envelope peaks and the emission is strongest):
+//!
+//! ```text
+//! η = 1 − exp(−∫_{t_start}^{0} Σ_n w_ADK,n(|E(t)|) dt)
+//! ```
+//!
+//! with the project's static ADK rates of every channel (l = m = 0; M. V. Ammosov, N. B. Delone,
+//! V. P. Krainov, Sov. Phys. JETP 64, 1191 (1986); [`crate::tunnelling::adk_static_rate`]),
+//! the same cycle-resolved integral as the depletion check of [`crate::validity`] but stopped at
+//! the centre. A continuous (periodic) field has no start: the fraction is then undefined and
+//! the caller must give a pulse.
+
+use crate::error::{Error, Result};
+use crate::field::{Field, TimeStructure};
+use crate::tunnelling::adk_static_rate;
+use crate::validity::ChannelIp;
+
+/// Samples per period of the fastest mode.
+const SAMPLES_PER_PERIOD: f64 = 64.0;
+/// Largest number of samples.
+const MAX_SAMPLES: f64 = 2.0e5;
+
+/// The ionized fraction at the centre of the pulse `field` (formula in the module docs).
+///
+/// # Errors
+/// A periodic field (no pulse to integrate over).
+pub fn ionized_fraction_at_centre(field: &Field, channels: &[ChannelIp]) -> Result<f64> {
+    let TimeStructure::Pulse { start, .. } = field.structure() else {
+        return Err(Error::invalid(
+            "free_electrons",
+            "true",
+            "the ionized fraction is integrated over the pulse: give the laser a pulse envelope \
+             (a continuous field has no start)",
+        ));
+    };
+    let end = 0.0_f64;
+    if start >= end {
+        return Ok(0.0);
+    }
+    let nu_max = field
+        .modes()
+        .iter()
+        .map(|m| m.frequency)
+        .fold(field.omega(), f64::max);
+    let wanted = (end - start) * nu_max / (2.0 * std::f64::consts::PI) * SAMPLES_PER_PERIOD;
+    let n = wanted.clamp(16.0, MAX_SAMPLES) as usize;
+    let dt = (end - start) / n as f64;
+    let rate = |f: f64| -> f64 {
+        if f.is_nan() || f <= 0.0 {
+            return 0.0;
+        }
+        channels
+            .iter()
+            .map(|c| {
+                adk_static_rate(c.ip, c.charge, 0, 0, f)
+                    .ok()
+                    .filter(|w| w.is_finite())
+                    .unwrap_or(0.0)
+            })
+            .sum()
+    };
+    let mut integral = 0.0;
+    for k in 0..=n {
+        let t = start + dt * k as f64;
+        let weight = if k == 0 || k == n { 0.5 } else { 1.0 };
+        integral += weight * rate(field.electric_real(t).norm()) * dt;
+    }
+    Ok(-(-integral).exp_m1())
+}
