@@ -159,6 +159,18 @@ impl FieldScan {
 /// evaluated (e.g. `Γ(2n*)` overflow) count as zero.
 pub fn scan_field(field: &Field, channels: &[ChannelIp]) -> FieldScan {
     let (t0, t1) = field.time_span();
+    let (peak, integral) = integrate_rates(field, channels, t0, t1);
+    FieldScan {
+        peak_field: peak,
+        ionization_integral: integral,
+        periodic: matches!(field.structure(), TimeStructure::Periodic { .. }),
+    }
+}
+
+/// The peak of `|E(t)|` and the integral of the summed static ADK rates of `channels` over
+/// `[t0, t1]` (the sampling and rule of [`scan_field`]); also used for the ionized fraction of
+/// the detection layer's free-electron dispersion.
+pub fn integrate_rates(field: &Field, channels: &[ChannelIp], t0: f64, t1: f64) -> (f64, f64) {
     let nu_max = field
         .modes()
         .iter()
@@ -195,11 +207,7 @@ pub fn scan_field(field: &Field, channels: &[ChannelIp]) -> FieldScan {
         let weight = if k == 0 || k == n { 0.5 } else { 1.0 };
         integral += weight * rate(e) * dt;
     }
-    FieldScan {
-        peak_field: peak,
-        ionization_integral: integral,
-        periodic: matches!(field.structure(), TimeStructure::Periodic { .. }),
-    }
+    (peak, integral)
 }
 
 fn lowest(channels: &[ChannelIp]) -> Option<&ChannelIp> {

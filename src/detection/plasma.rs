@@ -15,13 +15,7 @@
 
 use crate::error::{Error, Result};
 use crate::field::{Field, TimeStructure};
-use crate::tunnelling::adk_static_rate;
 use crate::validity::ChannelIp;
-
-/// Samples per period of the fastest mode.
-const SAMPLES_PER_PERIOD: f64 = 64.0;
-/// Largest number of samples.
-const MAX_SAMPLES: f64 = 2.0e5;
 
 /// The ionized fraction at the centre of the pulse `field` (formula in the module docs).
 ///
@@ -40,33 +34,6 @@ pub fn ionized_fraction_at_centre(field: &Field, channels: &[ChannelIp]) -> Resu
     if start >= end {
         return Ok(0.0);
     }
-    let nu_max = field
-        .modes()
-        .iter()
-        .map(|m| m.frequency)
-        .fold(field.omega(), f64::max);
-    let wanted = (end - start) * nu_max / (2.0 * std::f64::consts::PI) * SAMPLES_PER_PERIOD;
-    let n = wanted.clamp(16.0, MAX_SAMPLES) as usize;
-    let dt = (end - start) / n as f64;
-    let rate = |f: f64| -> f64 {
-        if f.is_nan() || f <= 0.0 {
-            return 0.0;
-        }
-        channels
-            .iter()
-            .map(|c| {
-                adk_static_rate(c.ip, c.charge, 0, 0, f)
-                    .ok()
-                    .filter(|w| w.is_finite())
-                    .unwrap_or(0.0)
-            })
-            .sum()
-    };
-    let mut integral = 0.0;
-    for k in 0..=n {
-        let t = start + dt * k as f64;
-        let weight = if k == 0 || k == n { 0.5 } else { 1.0 };
-        integral += weight * rate(field.electric_real(t).norm()) * dt;
-    }
+    let (_, integral) = crate::validity::integrate_rates(field, channels, start, end);
     Ok(-(-integral).exp_m1())
 }
