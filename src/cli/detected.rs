@@ -102,10 +102,12 @@ pub fn setup(args: &DetectionArgs) -> Result<(SetupSpec, Setup)> {
 
 fn colour(label: &str) -> &'static str {
     match label {
-        "short" => "#1f77b4",
-        "long" => "#d62728",
-        l if l.ends_with("short") => "#2ca02c",
-        _ => "#9467bd",
+        // Okabe–Ito, as every figure of the tool (src/report/svg/palette.rs): long orbits
+        // blue, short orbits vermillion.
+        "short" => "#D55E00",
+        "long" => "#0072B2",
+        l if l.ends_with("short") => "#009E73",
+        _ => "#CC79A7",
     }
 }
 

@@ -68,10 +68,15 @@ pub fn detection_figure(title: &str, curves: &[Curve]) -> String {
         let y = py(-(d as f64));
         let _ = writeln!(
             s,
-            r##"<line x1="{left}" y1="{y}" x2="{}" y2="{y}" stroke="#ddd"/><text x="{}" y="{}" text-anchor="end">1e-{d}</text>"##,
+            r##"<line x1="{left}" y1="{y}" x2="{}" y2="{y}" stroke="#ddd"/><text x="{}" y="{}" text-anchor="end">{}</text>"##,
             left + pw,
             left - 6.0,
-            y + 4.0
+            y + 4.0,
+            if d == 0 {
+                "1".to_string()
+            } else {
+                format!(r#"10<tspan dy="-5" font-size="9">−{d}</tspan>"#)
+            }
         );
     }
     let step = nice_step((x1 - x0) / 8.0);
