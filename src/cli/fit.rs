@@ -21,6 +21,8 @@ use holecast::fit::synthetic::{Noise, draw, table};
 use holecast::fit::uncertainty::{DEFAULT_RCOND, NoiseScale, analyse};
 use holecast::fit::{IterationReport, Observer};
 use holecast::laser::LaserSpec;
+use holecast::report::svg::canvas::superscript;
+use holecast::report::svg::palette::COLOURS;
 use holecast::target::TargetSpec;
 use holecast::units;
 
@@ -389,6 +391,8 @@ fn figure(
                 .map_err(|e| format!("{e:?}"))?;
             c.configure_mesh()
                 .y_desc("line yield")
+                .x_label_formatter(&|q| format!("{q:.0}"))
+                .y_label_formatter(&decade_label)
                 .draw()
                 .map_err(|e| format!("{e:?}"))?;
             let data: Vec<(f64, f64)> = d.orders.iter().cloned().zip(d.y.iter().cloned()).collect();
@@ -414,10 +418,12 @@ fn figure(
             .map_err(|e| format!("{e:?}"))?
             .label("data")
             .legend(|(x, y)| Circle::new((x, y), 3, BLACK.filled()));
-            c.draw_series(LineSeries::new(model.clone(), RED.stroke_width(2)))
+            // The tool's Okabe–Ito colours (src/report/svg/palette.rs).
+            let (model_colour, residual_colour) = (COLOURS[1], COLOURS[0]);
+            c.draw_series(LineSeries::new(model.clone(), model_colour.stroke_width(2)))
                 .map_err(|e| format!("{e:?}"))?
                 .label("model (scaled)")
-                .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 16, y)], RED));
+                .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 16, y)], model_colour));
             c.configure_series_labels()
                 .position(SeriesLabelPosition::UpperRight)
                 .border_style(BLACK)
@@ -434,6 +440,7 @@ fn figure(
                 .map_err(|e| format!("{e:?}"))?;
             c2.configure_mesh()
                 .x_desc("harmonic order")
+                .x_label_formatter(&|q| format!("{q:.0}"))
                 .y_desc(match mode {
                     ResidualMode::Log => "log residual / σ",
                     ResidualMode::Linear => "residual / σ",
@@ -446,7 +453,7 @@ fn figure(
                 d.orders
                     .iter()
                     .zip(r)
-                    .map(|(&q, &v)| Circle::new((q, v), 3, BLUE.filled())),
+                    .map(|(&q, &v)| Circle::new((q, v), 3, residual_colour.filled())),
             )
             .map_err(|e| format!("{e:?}"))?;
         }
@@ -665,4 +672,14 @@ pub fn synthetic(args: &SyntheticArgs, global: &Global) -> Result<()> {
         }
     }
     Ok(())
+}
+
+/// A log-axis label: `10ⁿ` at decades (the other figures' labels), else the plain value.
+fn decade_label(v: &f64) -> String {
+    let l = v.log10();
+    if (l - l.round()).abs() < 1e-9 {
+        format!("10{}", superscript(l.round() as i64))
+    } else {
+        format!("{v:e}")
+    }
 }
