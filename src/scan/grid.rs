@@ -9,7 +9,9 @@
 //! (1993)) and `1.32 Ip` the quantum correction of Lewenstein et al., PRA 49, 2117 (1994). The
 //! `spectrum` command searches the quantum cutoff instead; the scan uses the formula so that
 //! the grid is known before any point runs. Steps: 1 order for periodic fields, 0.1 for pulses
-//! (as `spectrum`), 0.5 eV for energy grids.
+//! (as `spectrum`), 0.5 eV for energy grids; odd orders only (step 2) when every point's field
+//! is half-wave symmetric and its target inversion-symmetric (the even orders vanish there; the
+//! rule of [`crate::grid`]).
 
 use serde::{Deserialize, Serialize};
 
@@ -122,6 +124,9 @@ pub fn resolve(
         ..OrbitSettings::default()
     };
     let (mut lowest, mut highest, mut pulse) = (f64::INFINITY, 0.0_f64, false);
+    // Odd orders only when every point's field is half-wave symmetric with period T₁ and its
+    // target inversion-symmetric: the rule of the `spectrum` default grid ([`crate::grid`]).
+    let mut odd_only = true;
     for index in 0..definition.point_count() {
         let Ok((target, laser)) = definition.point_documents(index) else {
             continue;
@@ -143,6 +148,14 @@ pub fn resolve(
         lowest = lowest.min(ip_min / scale);
         highest = highest.max(top / scale);
         pulse |= matches!(field.structure(), TimeStructure::Pulse { .. });
+        let one_period = match field.structure() {
+            TimeStructure::Periodic { period } => {
+                (period * field.omega() / (2.0 * std::f64::consts::PI) - 1.0).abs() < 1e-9
+            }
+            TimeStructure::Pulse { .. } => false,
+        };
+        odd_only &=
+            one_period && field.half_wave_symmetric() && crate::grid::inversion_symmetric(&target);
     }
     if !lowest.is_finite() {
         return Err(ScanError::invalid(
@@ -157,7 +170,16 @@ pub fn resolve(
         (GridKind::Order, true) => 0.1,
         (GridKind::EnergyEv, _) => 0.5,
     };
-    let first = (lowest / step).floor() * step + step;
+    let mut first = (lowest / step).floor() * step + step;
+    let odd = odd_only && kind == GridKind::Order;
+    let step = if odd {
+        if first % 2.0 == 0.0 {
+            first += 1.0;
+        }
+        2.0
+    } else {
+        step
+    };
     let last = highest.max(first + step);
     budget::check_grid(first, last, step, limits).map_err(|e| {
         ScanError::invalid(
